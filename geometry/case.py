@@ -1,0 +1,427 @@
+"""The case file (TOML): read, check and return plain dataclasses.
+
+Every quantity is converted to SI here (temperatures stay in degC).  Any
+problem raises :class:`~geometry.errors.CaseError` naming the file, the key
+path and the fix.  The geometric checks (turns that do not fit, overlaps,
+conductors outside the window) live in :mod:`geometry.layout`.
+"""
+
+from __future__ import annotations
+
+import cmath
+import difflib
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from .errors import CaseError
+from .materials import MATERIALS, ALIASES
+from .units import quantity
+
+SYMMETRIES = ("planar",)
+BOUNDARIES = ("ideal-core", "open")
+STACKINGS = ("across-width", "along-height")
+SHAPES = ("round", "rectangular", "foil")
+ALIGNS = ("centre", "start", "end", "spread")
+
+
+@dataclass(frozen=True)
+class Model:
+    symmetry: str = "planar"
+    length: float = 1.0          #: m, conductor length per turn (mean turn length)
+    temperature_c: float = 20.0  #: degC
+
+
+@dataclass(frozen=True)
+class Window:
+    width: float                  #: m, inner wall (x = 0) to outer wall
+    height: float                 #: m, bottom (y = 0) to top
+    boundary: str = "ideal-core"
+    margin_inner: float = 0.0     #: m, keep-out at x = 0
+    margin_outer: float = 0.0     #: m, keep-out at x = width
+    margin_top: float = 0.0       #: m
+    margin_bottom: float = 0.0    #: m
+    stacking: str = "across-width"
+
+
+@dataclass(frozen=True)
+class Winding:
+    name: str
+    material: str = "copper"
+    current: float = 1.0          #: A RMS
+    phase_deg: float = 0.0        #: degrees
+
+    @property
+    def phasor(self) -> complex:
+        """RMS current phasor in A (see README, conventions)."""
+        return self.current * cmath.exp(1j * math.radians(self.phase_deg))
+
+
+@dataclass(frozen=True)
+class ConductorSpec:
+    """A conductor cross-section.  Sizes in m.
+
+    round: ``width = height = diameter``; rectangular: ``width`` x ``height``;
+    foil: ``width = thickness`` (across the layer) and ``height`` along it.
+    ``outer_width``/``outer_height`` include insulation and set the pitch.
+    """
+
+    shape: str
+    width: float
+    height: float
+    outer_width: float
+    outer_height: float
+
+    @property
+    def area(self) -> float:
+        """True conducting cross-section in m^2."""
+        if self.shape == "round":
+            return math.pi * self.width ** 2 / 4.0
+        return self.width * self.height
+
+
+@dataclass(frozen=True)
+class Layer:
+    winding: str
+    conductor: ConductorSpec
+    turns: int
+    insulation_after: float = 0.0  #: m, space to the next layer
+    repeat: int = 1
+    align: str = "centre"
+    key: str = "layer[1]"          #: key path for messages
+
+
+@dataclass(frozen=True)
+class PlacedConductor:
+    winding: str
+    conductor: ConductorSpec
+    at: tuple[float, float]        #: m, centre from the inner-bottom window corner
+    key: str = "conductor[1]"
+
+
+@dataclass(frozen=True)
+class MeshOptions:
+    density: float = 1.0           #: >1 finer, <1 coarser than the default sizing
+    far_radius_factor: float = 5.0  #: open boundary: far circle / window half-diagonal
+
+
+@dataclass(frozen=True)
+class Case:
+    title: str
+    model: Model
+    frequencies: tuple[float, ...]  #: Hz, increasing; 0 gives the DC solution
+    window: Window
+    windings: tuple[Winding, ...]
+    layers: tuple[Layer, ...] = ()
+    conductors: tuple[PlacedConductor, ...] = ()
+    mesh: MeshOptions = field(default_factory=MeshOptions)
+    path: str = ""
+
+    def winding(self, name: str) -> Winding:
+        return next(w for w in self.windings if w.name == name)
+
+
+class _Table:
+    """A TOML table read key by key; unknown keys are refused."""
+
+    def __init__(self, data: object, path: str) -> None:
+        if not isinstance(data, dict):
+            raise CaseError(path, f"expected a table, got {type(data).__name__}",
+                            f"write [{path}] as a table of keys")
+        self.data = data
+        self.path = path
+        self.used: set[str] = set()
+
+    def key(self, name: str) -> str:
+        return f"{self.path}.{name}" if self.path else name
+
+    def has(self, name: str) -> bool:
+        return name in self.data
+
+    def raw(self, name: str, default: object = None, required: bool = False) -> object:
+        self.used.add(name)
+        if name not in self.data:
+            if required:
+                raise CaseError(self.key(name), "missing", f"add {name} = ... to [{self.path or 'top level'}]")
+            return default
+        return self.data[name]
+
+    def quantity(self, name: str, kind: str, default: float | None = None,
+                 required: bool = False, positive: bool = False,
+                 nonnegative: bool = False) -> float:
+        value = self.raw(name, default, required)
+        if value is None:
+            raise CaseError(self.key(name), "missing", f"add {name} = ... to [{self.path}]")
+        number = quantity(value, kind, self.key(name))
+        if positive and not number > 0.0:
+            raise CaseError(self.key(name), f"must be greater than zero, got {value!r}",
+                            "give a positive size")
+        if nonnegative and number < 0.0:
+            raise CaseError(self.key(name), f"must not be negative, got {value!r}",
+                            "give zero or a positive value")
+        return number
+
+    def text(self, name: str, default: str | None = None, choices: tuple[str, ...] = (),
+             required: bool = False) -> str:
+        value = self.raw(name, default, required)
+        if not isinstance(value, str):
+            raise CaseError(self.key(name), f"expected text, got {value!r}",
+                            f'write it in quotes, such as {name} = "{choices[0] if choices else "name"}"')
+        if choices and value not in choices:
+            hint = difflib.get_close_matches(value, choices, n=1)
+            fix = f'did you mean "{hint[0]}"?' if hint else "use one of " + ", ".join(f'"{c}"' for c in choices)
+            raise CaseError(self.key(name), f'unknown value "{value}"', fix)
+        return value
+
+    def integer(self, name: str, default: int | None = None, minimum: int = 1) -> int:
+        value = self.raw(name, default, default is None)
+        if isinstance(value, bool) or not isinstance(value, int):
+            if isinstance(value, float) and value.is_integer():
+                value = int(value)
+            else:
+                raise CaseError(self.key(name), f"expected a whole number, got {value!r}",
+                                f"write {name} = {max(minimum, 1)} or another whole number")
+        if value < minimum:
+            raise CaseError(self.key(name), f"must be at least {minimum}, got {value}",
+                            f"give a whole number of {minimum} or more")
+        return value
+
+    def close(self) -> None:
+        """Refuse keys that were never read (with a did-you-mean)."""
+        for name in self.data:
+            if name not in self.used:
+                hint = difflib.get_close_matches(name, sorted(self.used), n=1)
+                fix = f'did you mean "{hint[0]}"?' if hint else "remove it (see the case-file reference in README)"
+                raise CaseError(self.key(name), "unknown key", fix)
+
+
+def _model(table: _Table) -> Model:
+    symmetry = table.raw("symmetry", "planar")
+    if symmetry == "axisymmetric":
+        raise CaseError(table.key("symmetry"), '"axisymmetric" is not available in this version',
+                        'use symmetry = "planar"')
+    symmetry = table.text("symmetry", "planar", SYMMETRIES)
+    length = table.quantity("length", "length", 1.0, positive=True)
+    temperature = table.quantity("temperature", "temperature", 20.0)
+    if temperature < -200.0 or temperature > 400.0:
+        raise CaseError(table.key("temperature"), f"{temperature:g} degC is outside -200..400 degC",
+                        'give the winding temperature, such as "100 degC"')
+    table.close()
+    return Model(symmetry, length, temperature)
+
+
+def _frequencies(table: _Table) -> tuple[float, ...]:
+    if table.has("frequencies"):
+        values = table.raw("frequencies")
+        if not isinstance(values, list) or not values:
+            raise CaseError(table.key("frequencies"), "expected a non-empty list",
+                            'write frequencies = ["100 kHz", "400 kHz"]')
+        freqs = [quantity(v, "frequency", f"{table.key('frequencies')}[{i + 1}]")
+                 for i, v in enumerate(values)]
+        for name in ("start", "stop", "points"):
+            if table.has(name):
+                raise CaseError(table.key(name), "given together with frequencies",
+                                "use either a frequencies list or start/stop/points")
+    else:
+        start = table.quantity("start", "frequency", required=True, positive=True)
+        stop = table.quantity("stop", "frequency", required=True, positive=True)
+        points = table.integer("points", 20, minimum=1)
+        if stop < start:
+            raise CaseError(table.key("stop"), "is below start", "make stop greater than start")
+        if points > 1 and stop == start:
+            raise CaseError(table.key("stop"), "equals start with points > 1",
+                            "make stop greater than start or set points = 1")
+        freqs = list(np.geomspace(start, stop, points))
+    table.close()
+    for i, f in enumerate(freqs):
+        if f < 0.0:
+            raise CaseError(f"{table.key('frequencies')}[{i + 1}]", f"negative frequency {f:g} Hz",
+                            "give frequencies of 0 Hz (DC) or more")
+        if i and f <= freqs[i - 1]:
+            raise CaseError(f"{table.key('frequencies')}[{i + 1}]",
+                            "frequencies must increase", "list each frequency once, in increasing order")
+    return tuple(float(f) for f in freqs)
+
+
+def _window(table: _Table) -> Window:
+    width = table.quantity("width", "length", required=True, positive=True)
+    height = table.quantity("height", "length", required=True, positive=True)
+    boundary = table.text("boundary", "ideal-core", BOUNDARIES)
+    stacking = table.text("stacking", "across-width", STACKINGS)
+    margins = _Table(table.raw("margins", {}), table.key("margins"))
+    sides = {side: margins.quantity(side, "length", 0.0, nonnegative=True)
+             for side in ("inner", "outer", "top", "bottom")}
+    margins.close()
+    table.close()
+    if sides["inner"] + sides["outer"] >= width:
+        raise CaseError(table.key("margins"), "inner + outer margins leave no width",
+                        "make the margins smaller than the window width")
+    if sides["top"] + sides["bottom"] >= height:
+        raise CaseError(table.key("margins"), "top + bottom margins leave no height",
+                        "make the margins smaller than the window height")
+    return Window(width, height, boundary, sides["inner"], sides["outer"], sides["top"],
+                  sides["bottom"], stacking)
+
+
+def _conductor(table: _Table) -> ConductorSpec:
+    shape = table.text("shape", None, SHAPES, required=True)
+    if shape == "round":
+        d = table.quantity("diameter", "length", required=True, positive=True)
+        od = table.quantity("outer_diameter", "length", d, positive=True)
+        if od < d:
+            raise CaseError(table.key("outer_diameter"), "is smaller than diameter",
+                            "give the diameter over insulation, at least the bare diameter")
+        spec = ConductorSpec(shape, d, d, od, od)
+    elif shape == "rectangular":
+        w = table.quantity("width", "length", required=True, positive=True)
+        h = table.quantity("height", "length", required=True, positive=True)
+        ow = table.quantity("outer_width", "length", w, positive=True)
+        oh = table.quantity("outer_height", "length", h, positive=True)
+        if ow < w or oh < h:
+            raise CaseError(table.key("outer_width" if ow < w else "outer_height"),
+                            "is smaller than the bare size", "give the size over insulation")
+        spec = ConductorSpec(shape, w, h, ow, oh)
+    else:
+        t = table.quantity("thickness", "length", required=True, positive=True)
+        h = table.quantity("height", "length", required=True, positive=True)
+        ot = table.quantity("outer_thickness", "length", t, positive=True)
+        if ot < t:
+            raise CaseError(table.key("outer_thickness"), "is smaller than thickness",
+                            "give the thickness over insulation")
+        spec = ConductorSpec(shape, t, h, ot, h)
+    table.close()
+    return spec
+
+
+def _winding_ref(table: _Table, names: list[str]) -> str:
+    name = table.raw("winding", None, required=True)
+    if name not in names:
+        hint = difflib.get_close_matches(str(name), names, n=1)
+        fix = f'did you mean "{hint[0]}"?' if hint else "name a winding defined in a [[winding]] table"
+        raise CaseError(table.key("winding"), f'unknown winding "{name}"', fix)
+    return name
+
+
+def _list_of_tables(doc: _Table, name: str) -> list[_Table]:
+    items = doc.raw(name, [])
+    if not isinstance(items, list):
+        raise CaseError(name, "expected a list of tables", f"write each one as [[{name}]]")
+    return [_Table(item, f"{name}[{i + 1}]") for i, item in enumerate(items)]
+
+
+def parse_case(doc: dict, path: str = "") -> Case:
+    """Build a :class:`Case` from a parsed TOML document."""
+    try:
+        return _parse(doc, path)
+    except CaseError as error:
+        raise error.in_file(path) if path else error
+
+
+def _parse(doc: dict, path: str) -> Case:
+    top = _Table(doc, "")
+    title = top.raw("title", Path(path).stem if path else "case")
+    if not isinstance(title, str):
+        raise CaseError("title", "expected text", 'write title = "my transformer"')
+    model = _model(_Table(top.raw("model", {}), "model"))
+    frequencies = _frequencies(_Table(top.raw("sweep", None, required=True), "sweep"))
+    window = _window(_Table(top.raw("window", None, required=True), "window"))
+
+    windings: list[Winding] = []
+    for t in _list_of_tables(top, "winding"):
+        name = t.raw("name", None, required=True)
+        if not isinstance(name, str) or not name.strip():
+            raise CaseError(t.key("name"), "expected a non-empty name", 'write name = "primary"')
+        if any(w.name == name for w in windings):
+            raise CaseError(t.key("name"), f'winding "{name}" is defined twice', "give each winding its own name")
+        mat = t.text("material", "copper", tuple(MATERIALS) + tuple(ALIASES))
+        mat = ALIASES.get(mat, mat)
+        current = t.quantity("current", "current", 1.0, nonnegative=True)
+        phase = t.quantity("phase", "angle", 0.0)
+        t.close()
+        windings.append(Winding(name, mat, current, phase))
+    if not windings:
+        raise CaseError("winding", "no windings", 'add a [[winding]] table with name = "primary"')
+    names = [w.name for w in windings]
+
+    layers: list[Layer] = []
+    for t in _list_of_tables(top, "layer"):
+        winding = _winding_ref(t, names)
+        spec = _conductor(_Table(t.raw("conductor", None, required=True), t.key("conductor")))
+        turns = t.integer("turns", 1)
+        insulation = t.quantity("insulation_after", "length", 0.0, nonnegative=True)
+        repeat = t.integer("repeat", 1)
+        align = t.text("align", "centre", ALIGNS)
+        t.close()
+        layers.append(Layer(winding, spec, turns, insulation, repeat, align, t.path))
+
+    placed: list[PlacedConductor] = []
+    for t in _list_of_tables(top, "conductor"):
+        winding = _winding_ref(t, names)
+        at = t.raw("at", None, required=True)
+        if not isinstance(at, list) or len(at) != 2:
+            raise CaseError(t.key("at"), "expected two coordinates", 'write at = ["0.7 mm", "0.5 mm"]')
+        xy = (quantity(at[0], "length", t.key("at") + "[1]"), quantity(at[1], "length", t.key("at") + "[2]"))
+        # the remaining keys describe the shape, as in a layer's conductor table
+        shape_keys = {k: v for k, v in t.data.items() if k not in ("winding", "at")}
+        t.used.update(shape_keys)
+        spec = _conductor(_Table(shape_keys, t.path))
+        placed.append(PlacedConductor(winding, spec, xy, t.path))
+
+    mesh_table = _Table(top.raw("mesh", {}), "mesh")
+    density = mesh_table.quantity("density", "number", 1.0, positive=True)
+    far = mesh_table.quantity("far_radius_factor", "number", 5.0, positive=True)
+    if far < 2.0:
+        raise CaseError("mesh.far_radius_factor", f"{far:g} is too close to the window",
+                        "use 2 or more (default 5)")
+    mesh_table.close()
+    top.close()
+
+    for w in windings:
+        if not any(l.winding == w.name for l in layers) and not any(c.winding == w.name for c in placed):
+            raise CaseError(f"winding[{names.index(w.name) + 1}]", f'winding "{w.name}" has no turns',
+                            "add a [[layer]] or [[conductor]] with this winding, or remove the winding")
+
+    case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
+                MeshOptions(density, far), path)
+    if window.boundary == "ideal-core":
+        _check_balance(case)
+    return case
+
+
+def winding_turns(case: Case, name: str) -> int:
+    """Number of turns (conductors in series) of winding ``name``."""
+    return (sum(l.turns * l.repeat for l in case.layers if l.winding == name)
+            + sum(1 for c in case.conductors if c.winding == name))
+
+
+def _check_balance(case: Case) -> None:
+    mmf = [winding_turns(case, w.name) * w.phasor for w in case.windings]
+    net = sum(mmf)
+    scale = sum(abs(m) for m in mmf)
+    if scale > 0 and abs(net) > 1e-6 * scale:
+        parts = ", ".join(f"{w.name} {winding_turns(case, w.name)} x {w.current:g} A at {w.phase_deg:g} deg"
+                          for w in case.windings)
+        raise CaseError("winding", f"ampere-turns do not sum to zero in an ideal-core window "
+                        f"({parts}; net {abs(net):.4g} A)",
+                        'set currents and phases so that the sum of N*I is zero, or use window.boundary = "open"')
+
+
+def load_case(path: str | Path) -> Case:
+    """Read and check the case file at ``path``."""
+    path = Path(path)
+    name = str(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise CaseError("", "file not found", "check the path to the case file", name) from None
+    except (OSError, UnicodeDecodeError) as error:
+        raise CaseError("", f"cannot read the file ({error.__class__.__name__})",
+                        "give a readable UTF-8 TOML file", name) from None
+    try:
+        doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        raise CaseError("", f"TOML syntax error: {error}", "fix the syntax at that line", name) from None
+    return parse_case(doc, name)

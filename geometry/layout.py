@@ -1,0 +1,146 @@
+"""Place every turn of every winding in the window.
+
+Coordinates in m from the inner-bottom corner of the window: x runs from the
+inner wall (x = 0) to the outer wall, y from the bottom up.  Layers follow one
+another from the inner wall outward (``stacking = "across-width"``) or from the
+bottom up (``"along-height"``); within a layer, turns are placed along the
+other direction.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from .case import Case, ConductorSpec
+from .errors import CaseError
+
+_TOL = 1e-12  # m; touching is allowed, overlapping is not
+
+
+@dataclass(frozen=True)
+class Conductor:
+    """One turn's cross-section, placed.  Sizes and positions in m."""
+
+    index: int          #: 0-based position in the case's conductor list
+    winding: str
+    turn: int           #: 1-based turn number within the winding
+    shape: str          #: "round" or "rect" (rectangular and foil both mesh as rectangles)
+    x: float            #: centre
+    y: float            #: centre
+    width: float        #: bare size along x (the diameter for round)
+    height: float       #: bare size along y
+    key: str            #: case key that created it, for messages
+
+    @property
+    def area(self) -> float:
+        """True conducting cross-section in m^2."""
+        if self.shape == "round":
+            return math.pi * self.width ** 2 / 4.0
+        return self.width * self.height
+
+    @property
+    def radius(self) -> float:
+        return 0.5 * self.width
+
+
+def _oriented(spec: ConductorSpec, stacking: str) -> tuple[float, float, float, float]:
+    """Bare and outer (width, height) in window axes; a foil lies along its layer."""
+    if spec.shape == "foil" and stacking == "along-height":
+        return spec.height, spec.width, spec.outer_height, spec.outer_width
+    return spec.width, spec.height, spec.outer_width, spec.outer_height
+
+
+def _mm(value: float) -> str:
+    return f"{value * 1e3:.4g} mm"
+
+
+def place(case: Case) -> list[Conductor]:
+    """All conductors of ``case`` with positions; raises CaseError on a bad layout."""
+    win = case.window
+    across_width = win.stacking == "across-width"
+    # (lo, hi) along the layers' stacking direction and along each layer
+    stack_lo, stack_hi = ((win.margin_inner, win.width - win.margin_outer) if across_width
+                          else (win.margin_bottom, win.height - win.margin_top))
+    along_lo, along_hi = ((win.margin_bottom, win.height - win.margin_top) if across_width
+                          else (win.margin_inner, win.width - win.margin_outer))
+    direction = "width" if across_width else "height"
+
+    turn_count: dict[str, int] = {}
+    placed: list[Conductor] = []
+
+    def add(winding: str, shape: str, x: float, y: float, w: float, h: float, key: str) -> None:
+        turn_count[winding] = turn_count.get(winding, 0) + 1
+        placed.append(Conductor(len(placed), winding, turn_count[winding],
+                                "round" if shape == "round" else "rect", x, y, w, h, key))
+
+    position = stack_lo
+    for layer in case.layers:
+        bw, bh, ow, oh = _oriented(layer.conductor, win.stacking)
+        thickness, pitch = (ow, oh) if across_width else (oh, ow)
+        avail = along_hi - along_lo
+        need = layer.turns * pitch
+        if need > avail * (1 + 1e-9) + _TOL:
+            raise CaseError(f"{layer.key}.turns",
+                            f"{layer.turns} turns at a pitch of {_mm(pitch)} need {_mm(need)} "
+                            f"but the window gives {_mm(avail)} between the margins",
+                            "use fewer turns per layer, a smaller conductor or smaller margins")
+        for _ in range(layer.repeat):
+            if position + thickness > stack_hi * (1 + 1e-9) + _TOL:
+                raise CaseError(f"{layer.key}",
+                                f"the layers need {_mm(position + thickness - stack_lo)} across the window {direction} "
+                                f"but {_mm(stack_hi - stack_lo)} is free between the margins",
+                                "use fewer or thinner layers, less insulation_after, or a larger window")
+            centre_stack = position + 0.5 * thickness
+            if layer.align == "spread":
+                step, start = avail / layer.turns, along_lo
+            elif layer.align == "start":
+                step, start = pitch, along_lo
+            elif layer.align == "end":
+                step, start = pitch, along_hi - need
+            else:
+                step, start = pitch, along_lo + 0.5 * (avail - need)
+            for i in range(layer.turns):
+                along = start + (i + 0.5) * step
+                x, y = (centre_stack, along) if across_width else (along, centre_stack)
+                add(layer.winding, layer.conductor.shape, x, y, bw, bh, layer.key)
+            position += thickness + layer.insulation_after
+
+    for item in case.conductors:
+        bw, bh, _, _ = _oriented(item.conductor, "across-width")
+        add(item.winding, item.conductor.shape, item.at[0], item.at[1], bw, bh, item.key)
+
+    for c in placed:
+        if (c.x - c.width / 2 < -_TOL or c.x + c.width / 2 > win.width + _TOL
+                or c.y - c.height / 2 < -_TOL or c.y + c.height / 2 > win.height + _TOL):
+            raise CaseError(c.key, f"{c.winding} turn {c.turn} at ({_mm(c.x)}, {_mm(c.y)}) "
+                            f"reaches outside the {_mm(win.width)} x {_mm(win.height)} window",
+                            "move it inside the window (coordinates from the inner-bottom corner)")
+    _check_overlaps(placed)
+    return placed
+
+
+def _overlap(a: Conductor, b: Conductor) -> bool:
+    if a.shape == "round" and b.shape == "round":
+        return math.hypot(a.x - b.x, a.y - b.y) < a.radius + b.radius - 1e-9 * (a.radius + b.radius)
+    if a.shape == "rect" and b.shape == "rect":
+        return (abs(a.x - b.x) < (a.width + b.width) / 2 * (1 - 1e-9)
+                and abs(a.y - b.y) < (a.height + b.height) / 2 * (1 - 1e-9))
+    circle, rect = (a, b) if a.shape == "round" else (b, a)
+    dx = max(abs(circle.x - rect.x) - rect.width / 2, 0.0)
+    dy = max(abs(circle.y - rect.y) - rect.height / 2, 0.0)
+    return math.hypot(dx, dy) < circle.radius * (1 - 1e-9)
+
+
+def _check_overlaps(conductors: list[Conductor]) -> None:
+    order = sorted(conductors, key=lambda c: c.x - c.width / 2)
+    for i, a in enumerate(order):
+        right = a.x + a.width / 2
+        for b in order[i + 1:]:
+            if b.x - b.width / 2 >= right:
+                break
+            if _overlap(a, b):
+                first, second = sorted((a, b), key=lambda c: c.index)
+                raise CaseError(second.key, f"{second.winding} turn {second.turn} overlaps "
+                                f"{first.winding} turn {first.turn} ({first.key})",
+                                "move one of them or make the conductors smaller")

@@ -1,0 +1,173 @@
+"""Mesh the window cross-section with gmsh: curved second-order triangles.
+
+The element size at conductor surfaces follows the skin depth at the highest
+frequency; it grows into the conductor interiors and into the air.  Circles
+are meshed with curved (6-node) triangles whose edge nodes lie on the true
+circle, so conductor areas match the true areas to well below 0.05 %.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import gmsh
+import numpy as np
+
+from .layout import Conductor
+
+AIR = -1
+"""Region number of air (non-conducting) elements."""
+
+
+@dataclass(frozen=True)
+class MeshSizing:
+    """Element-size controls in m (and plain factors)."""
+
+    skin_depth: float           #: smallest skin depth at the highest frequency, m (inf at DC)
+    per_skin_depth: float = 1.5  #: elements per skin depth at conductor surfaces
+    per_circle: int = 28         #: elements around a round conductor at least
+    per_side: int = 2            #: elements across the shortest side of a rectangle at least
+    grading: float = 0.35        #: size growth per unit distance inside conductors
+    air_grading: float = 0.8     #: size growth per unit distance in air
+    density: float = 1.0         #: overall refinement factor (>1 finer)
+
+
+@dataclass(frozen=True)
+class WindowMesh:
+    """A second-order triangle mesh of the window.
+
+    ``points`` (2, n) in m; ``triangles`` (6, m): three corners then the edge
+    nodes 01, 12, 20; ``region`` (m,): conductor index or ``AIR``.
+    ``far_radius``/``far_centre``: the open-boundary circle (``None`` for
+    a closed window).
+    """
+
+    points: np.ndarray
+    triangles: np.ndarray
+    region: np.ndarray
+    surface_size: float
+    far_radius: float | None = None
+    far_centre: tuple[float, float] | None = None
+
+    @property
+    def nodes(self) -> int:
+        return self.points.shape[1]
+
+    @property
+    def elements(self) -> int:
+        return self.triangles.shape[1]
+
+
+def surface_size(conductor: Conductor, sizing: MeshSizing) -> float:
+    """Element size in m at the surface of ``conductor``."""
+    if conductor.shape == "round":
+        geometric = math.pi * conductor.width / sizing.per_circle
+    else:
+        geometric = min(conductor.width, conductor.height) / sizing.per_side
+    return min(geometric, sizing.skin_depth / sizing.per_skin_depth) / sizing.density
+
+
+def build_mesh(conductors: list[Conductor], width: float, height: float, boundary: str,
+               sizing: MeshSizing, far_radius_factor: float = 5.0) -> WindowMesh:
+    """Mesh the window (``boundary = "ideal-core"``: the window rectangle is the
+    domain) or the air around the conductors out to a far circle (``"open"``)."""
+    gmsh.initialize(["-noenv"], readConfigFiles=False, interruptible=False)
+    try:
+        gmsh.option.setNumber("General.Terminal", 0)
+        gmsh.option.setNumber("General.NumThreads", 1)
+        gmsh.model.add("window")
+        occ = gmsh.model.occ
+        tools = []
+        for c in conductors:
+            if c.shape == "round":
+                tools.append((2, occ.addDisk(c.x, c.y, 0.0, c.radius, c.radius)))
+            else:
+                tools.append((2, occ.addRectangle(c.x - c.width / 2, c.y - c.height / 2, 0.0,
+                                                  c.width, c.height)))
+        far_radius = far_centre = None
+        if boundary == "open":
+            far_centre = (width / 2, height / 2)
+            far_radius = far_radius_factor * 0.5 * math.hypot(width, height)
+            domain = occ.addDisk(far_centre[0], far_centre[1], 0.0, far_radius, far_radius)
+        else:
+            domain = occ.addRectangle(0.0, 0.0, 0.0, width, height)
+        _, mapping = occ.fragment([(2, domain)], tools)
+        occ.synchronize()
+
+        conductor_surfaces = [[tag for dim, tag in mapping[1 + i] if dim == 2] for i in range(len(conductors))]
+        owner = {tag: i for i, tags in enumerate(conductor_surfaces) for tag in tags}
+
+        sizes = [surface_size(c, sizing) for c in conductors]
+        h_min = min(sizes)
+        h_max = (far_radius / 6 if far_radius else min(width, height) / 6) / sizing.density
+        h_max = max(h_max, h_min)
+        air_surfaces = [tag for _, tag in gmsh.model.getEntities(2) if tag not in owner]
+        metal_surfaces = sorted(owner)
+        skin = min(sizing.skin_depth, 1.0)
+        field_ids = []
+        for h in sorted(set(round(s, 15) for s in sizes)):
+            curves = sorted({abs(t) for i, s in enumerate(sizes) if round(s, 15) == h
+                             for tag in conductor_surfaces[i]
+                             for _, t in gmsh.model.getBoundary([(2, tag)], oriented=False)})
+            longest = max(gmsh.model.occ.getMass(1, t) for t in curves)
+            dist = gmsh.model.mesh.field.add("Distance")
+            gmsh.model.mesh.field.setNumbers(dist, "CurvesList", curves)
+            gmsh.model.mesh.field.setNumber(dist, "Sampling", int(min(max(20, 2 * longest / h), 20000)))
+            # inside the metal: fine over about one skin depth, then growing
+            # slowly; in the air the field is smooth, so the size grows fast
+            for surfaces, dist_min, grading in ((metal_surfaces, min(skin, 4 * h), sizing.grading),
+                                                (air_surfaces, 0.0, sizing.air_grading)):
+                if not surfaces:
+                    continue
+                thr = gmsh.model.mesh.field.add("Threshold")
+                gmsh.model.mesh.field.setNumber(thr, "InField", dist)
+                gmsh.model.mesh.field.setNumber(thr, "SizeMin", h)
+                gmsh.model.mesh.field.setNumber(thr, "SizeMax", h_max)
+                gmsh.model.mesh.field.setNumber(thr, "DistMin", dist_min)
+                gmsh.model.mesh.field.setNumber(thr, "DistMax", dist_min + (h_max - h) / grading)
+                only = gmsh.model.mesh.field.add("Restrict")
+                gmsh.model.mesh.field.setNumber(only, "InField", thr)
+                gmsh.model.mesh.field.setNumbers(only, "SurfacesList", surfaces)
+                field_ids.append(only)
+        interior = []
+        for i, c in enumerate(conductors):
+            # conductor interiors: no coarser than a quarter of the conductor size
+            cap = gmsh.model.mesh.field.add("Constant")
+            gmsh.model.mesh.field.setNumber(cap, "VIn", max(min(c.width, c.height) / 4 / sizing.density, sizes[i]))
+            gmsh.model.mesh.field.setNumber(cap, "VOut", 1e22)
+            gmsh.model.mesh.field.setNumbers(cap, "SurfacesList", conductor_surfaces[i])
+            interior.append(cap)
+        least = gmsh.model.mesh.field.add("Min")
+        gmsh.model.mesh.field.setNumbers(least, "FieldsList", field_ids + interior)
+        gmsh.model.mesh.field.setAsBackgroundMesh(least)
+        gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
+        gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
+        gmsh.option.setNumber("Mesh.Algorithm", 6)
+        gmsh.model.mesh.generate(2)
+        gmsh.model.mesh.setOrder(2)
+
+        node_tags, coords, _ = gmsh.model.mesh.getNodes()
+        index = np.full(int(node_tags.max()) + 1, -1, dtype=np.int64)
+        index[node_tags.astype(np.int64)] = np.arange(len(node_tags))
+        points = coords.reshape(-1, 3)[:, :2].T.copy()
+        tri_blocks, region_blocks = [], []
+        for _, tag in gmsh.model.getEntities(2):
+            types, _, nodes = gmsh.model.mesh.getElements(2, tag)
+            for etype, enodes in zip(types, nodes):
+                if etype != 9:  # 6-node triangle
+                    raise RuntimeError(f"unexpected gmsh element type {etype}")
+                tri = index[enodes.astype(np.int64)].reshape(-1, 6).T
+                tri_blocks.append(tri)
+                region_blocks.append(np.full(tri.shape[1], owner.get(tag, AIR), dtype=np.int64))
+        triangles = np.hstack(tri_blocks)
+        region = np.concatenate(region_blocks)
+    finally:
+        gmsh.finalize()
+    # drop unused nodes (e.g. geometry points) and renumber
+    used = np.unique(triangles)
+    renumber = np.full(points.shape[1], -1, dtype=np.int64)
+    renumber[used] = np.arange(len(used))
+    return WindowMesh(points[:, used], renumber[triangles], region, h_min, far_radius, far_centre)

@@ -1,0 +1,90 @@
+"""Quantities given as SI numbers or as strings with units.
+
+``quantity("0.45 mm", "length", "layer[1].conductor.diameter")`` returns
+``0.00045``.  Temperatures are returned in degrees Celsius (the case speaks of
+copper temperature in degC); every other kind is returned in SI base units.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+from .errors import CaseError
+
+_PREFIX = {"G": 1e9, "M": 1e6, "k": 1e3, "": 1.0, "m": 1e-3, "u": 1e-6,
+           "\u00b5": 1e-6, "\u03bc": 1e-6, "n": 1e-9}
+
+# kind -> (SI unit symbol, {extra unit spelling: factor to SI})
+_KINDS = {
+    "length": ("m", {"cm": 1e-2, "mil": 25.4e-6, "in": 25.4e-3}),
+    "frequency": ("Hz", {}),
+    "current": ("A", {}),
+    "angle": ("deg", {"rad": 180.0 / math.pi, "\u00b0": 1.0}),
+    "resistivity": ("ohm*m", {"ohm m": 1.0, "ohm*cm": 1e-2, "uohm*cm": 1e-8}),
+}
+_PREFIXABLE = {"length": True, "frequency": True, "current": True,
+               "angle": False, "resistivity": False}
+
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+
+EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "current": '"1.5 A"',
+            "angle": '"30 deg"', "temperature": '"100 degC"',
+            "resistivity": '"1.72e-8 ohm*m"'}
+
+
+def _factor(kind: str, unit: str) -> float | None:
+    base, extra = _KINDS[kind]
+    if unit in extra:
+        return extra[unit]
+    if unit == base:
+        return 1.0
+    if _PREFIXABLE[kind] and unit.endswith(base):
+        prefix = unit[: -len(base)]
+        return _PREFIX.get(prefix)
+    return None
+
+
+def quantity(value: object, kind: str, key: str) -> float:
+    """Convert ``value`` (a number in SI, or a string with a unit) to a float.
+
+    ``kind`` is one of ``length`` (m), ``frequency`` (Hz), ``current`` (A),
+    ``angle`` (degrees), ``temperature`` (degC) or ``resistivity`` (ohm*m).
+    Raises :class:`CaseError` naming ``key`` on anything else.
+    """
+    if isinstance(value, bool):
+        raise CaseError(key, f"expected a {kind}, got {value!r}",
+                        f"write a number in SI units or a string such as {EXAMPLES[kind]}")
+    if isinstance(value, (int, float)):
+        number = float(value)
+        if not math.isfinite(number):
+            raise CaseError(key, f"{value!r} is not a finite number",
+                            f"give a finite {kind}")
+        return number
+    if not isinstance(value, str):
+        raise CaseError(key, f"expected a {kind}, got {type(value).__name__}",
+                        f"write a number in SI units or a string such as {EXAMPLES[kind]}")
+    match = _PATTERN.match(value)
+    if not match:
+        raise CaseError(key, f"cannot read {value!r} as a {kind}",
+                        f"write a number and a unit, such as {EXAMPLES[kind]}")
+    number, unit = float(match.group(1)), match.group(2)
+    if kind == "number":
+        if unit:
+            raise CaseError(key, f"expected a plain number, got {value!r}", "write it without a unit")
+        return number
+    if kind == "temperature":
+        if unit in ("", "degC", "\u00b0C", "C"):
+            return number
+        if unit == "K":
+            return number - 273.15
+        raise CaseError(key, f"unknown temperature unit {unit!r}",
+                        'use degC or K, such as "100 degC"')
+    if unit == "":
+        return number
+    factor = _factor(kind, unit)
+    if factor is None:
+        raise CaseError(key, f"unit {unit!r} is not a {kind} unit",
+                        f"write it such as {EXAMPLES[kind]}")
+    return number * factor

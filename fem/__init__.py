@@ -1,0 +1,4 @@
+"""Time-harmonic magnetoquasistatic field solution of the winding window.
+
+Imports from ``geometry`` only; nothing here imports ``postprocess``.
+"""

@@ -1,0 +1,111 @@
+"""A case's frequency sweep: one mesh and one assembly, one factorization per frequency."""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+
+from geometry.case import Case
+from geometry.layout import Conductor, place
+from geometry.materials import material, skin_depth
+from geometry.mesher import MeshSizing, WindowMesh, build_mesh
+
+from .planar import PlanarProblem
+
+
+@dataclass
+class FieldSnapshot:
+    """Field at one frequency on the mesh nodes, for plots and VTU files.
+
+    ``points`` (2, n) m and ``triangles`` (6, m) use the solver's node order
+    (corners, then edge nodes 01, 12, 20); ``region`` is as in the mesh.
+
+    ``potential`` Wb/m and ``current_density`` A/m^2, both complex RMS phasors.
+    """
+
+    frequency: float
+    points: np.ndarray
+    triangles: np.ndarray
+    region: np.ndarray
+    potential: np.ndarray
+    current_density: np.ndarray
+
+
+@dataclass
+class SweepResult:
+    """Per-conductor results of a sweep (per metre of conductor length).
+
+    ``loss_per_m`` (Nf, Nc) W/m; ``impedance_per_m`` (Nf, Nc, Nc) ohm/m;
+    ``rdc_per_m`` (Nc,) ohm/m from the true conductor areas; ``currents``
+    (Nc,) A RMS phasors.
+    """
+
+    frequencies: np.ndarray
+    conductors: list[Conductor]
+    resistivity: np.ndarray
+    currents: np.ndarray
+    rdc_per_m: np.ndarray
+    loss_per_m: np.ndarray
+    impedance_per_m: np.ndarray
+    mesh_area_error: np.ndarray
+    unknowns: int
+    elements: int
+    surface_size: float
+    timings: dict = field(default_factory=dict)
+    snapshot: FieldSnapshot | None = None
+
+
+def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarray:
+    """Resistivity (ohm*m) of every conductor at the case temperature."""
+    return np.array([material(case.winding(c.winding).material).resistivity(case.model.temperature_c)
+                     for c in conductors])
+
+
+def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
+    """The window mesh, sized from the smallest skin depth at the highest frequency."""
+    rho = conductor_resistivities(case, conductors)
+    delta = skin_depth(float(rho.min()), max(case.frequencies))
+    sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
+    return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
+                      sizing, case.mesh.far_radius_factor)
+
+
+def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None) -> SweepResult:
+    """Place, mesh, assemble once and solve every frequency of ``case``."""
+    timings = {}
+    start = time.perf_counter()
+    conductors = place(case)
+    rho = conductor_resistivities(case, conductors)
+    window_mesh = mesh_case(case, conductors)
+    timings["mesh_s"] = time.perf_counter() - start
+
+    start = time.perf_counter()
+    problem = PlanarProblem(window_mesh, 1.0 / rho)
+    timings["assembly_s"] = time.perf_counter() - start
+
+    currents = np.array([case.winding(c.winding).phasor for c in conductors], dtype=complex)
+    true_area = np.array([c.area for c in conductors])
+    freqs = np.array(case.frequencies)
+    nf, nc = len(freqs), len(conductors)
+    loss = np.zeros((nf, nc))
+    impedance = np.zeros((nf, nc, nc), dtype=complex)
+    snapshot = None
+    start = time.perf_counter()
+    for i, f in enumerate(freqs):
+        last = i == nf - 1
+        solution = problem.solve(f, currents, keep_field=last)
+        loss[i] = solution.loss_per_m
+        impedance[i] = solution.impedance_per_m
+        if last:
+            snapshot = FieldSnapshot(
+                f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
+                problem.current_density(f, solution.voltage_per_m, solution.potential))
+        if progress:
+            progress(i + 1, nf, f)
+    timings["solve_s"] = time.perf_counter() - start
+    return SweepResult(freqs, conductors, rho, currents, rho / true_area, loss, impedance,
+                       problem.areas / true_area - 1.0, problem.unknowns, window_mesh.elements,
+                       window_mesh.surface_size, timings, snapshot)

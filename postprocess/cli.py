@@ -1,0 +1,152 @@
+"""The ``racfield`` command: ``run`` solves a case, ``check`` validates it.
+
+Exit status: 0 done; 1 internal failure (a bug: please report it);
+2 bad input (one line on stderr naming the file, the key and the fix).
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import time
+from pathlib import Path
+
+from fem.sweep import conductor_resistivities, run_sweep
+from geometry.case import Case, load_case, winding_turns
+from geometry.errors import CaseError
+from geometry.layout import place
+from geometry.materials import material, skin_depth
+
+from .report import CAUTION, build_report, format_frequency
+from .writers import write_all
+
+EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
+
+
+def _progress(stream):
+    interactive = stream.isatty()
+    started = time.perf_counter()
+
+    def show(done: int, total: int, frequency: float) -> None:
+        elapsed = time.perf_counter() - started
+        line = f"  solved {done}/{total}  {format_frequency(frequency):>12}  {elapsed:6.1f} s"
+        if interactive:
+            stream.write("\r" + line + ("\n" if done == total else ""))
+        else:
+            stream.write(line + "\n")
+        stream.flush()
+
+    return show
+
+
+def _summary_table(report) -> str:
+    names = [w.name for w in report.windings]
+    head = f"{'frequency':>12} " + " ".join(f"{n[:14] + ' Rac/Rdc':>22} {'loss (W)':>10}" for n in names)
+    lines = [head, "-" * len(head)]
+    for i, f in enumerate(report.sweep.frequencies):
+        cells = []
+        for w in report.windings:
+            ratio = w.rac_over_rdc[i]
+            cells.append(f"{'-' if ratio is None else f'{ratio:.4f}':>22} {w.loss_w[i]:>10.4g}")
+        lines.append(f"{format_frequency(f):>12} " + " ".join(cells))
+    return "\n".join(lines)
+
+
+def command_run(args) -> int:
+    case = load_case(args.case)
+    out = Path(args.out) if args.out else Path(args.case).with_suffix("")
+    if out.exists() and not out.is_dir():
+        raise CaseError("--out", f"{out} exists and is not a folder", "name a folder for the results", args.case)
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as error:
+        raise CaseError("--out", f"cannot create {out} ({error.strerror})", "name a writable folder",
+                        args.case) from None
+    print(f"racfield: {case.title}", file=sys.stderr)
+    sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr))
+    report = build_report(case, sweep)
+    written = write_all(report, out)
+    print(_summary_table(report))
+    t = sweep.timings
+    print(f"\nmesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "
+          f"times: mesh {t['mesh_s']:.1f} s, assembly {t['assembly_s']:.1f} s, solve {t['solve_s']:.1f} s")
+    print("wrote: " + ", ".join(str(p) for p in written))
+    print(f"note: {CAUTION}")
+    return EXIT_OK
+
+
+def _check_text(case: Case) -> str:
+    conductors = place(case)
+    rho = conductor_resistivities(case, conductors)
+    win = case.window
+    lines = [f"case: {case.title}",
+             f"window: {win.width * 1e3:.4g} mm x {win.height * 1e3:.4g} mm, {win.boundary}, "
+             f"layers stacked {win.stacking}; {case.model.symmetry}, length {case.model.length * 1e3:.4g} mm, "
+             f"{case.model.temperature_c:g} degC"]
+    copper = sum(c.area for c in conductors)
+    lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
+    lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")
+    for w in case.windings:
+        idx = [c.index for c in conductors if c.winding == w.name]
+        layers = sum(l.repeat for l in case.layers if l.winding == w.name)
+        rdc = sum(rho[i] / conductors[i].area for i in idx) * case.model.length
+        lines.append(f"{w.name:<14} {winding_turns(case, w.name):>5} {layers:>6} {w.material:<10} "
+                     f"{w.current:>8.4g} A {rdc * 1e3:>9.5g} mOhm")
+    lines.append("skin depth at the case temperature, and the thickest conductor of each winding over it:")
+    sizes = {w.name: max(min(c.width, c.height) for c in conductors if c.winding == w.name) for w in case.windings}
+    head = f"{'frequency':>12} " + " ".join(f"{'delta ' + w.material[:2]:>10} {w.name[:10] + ' d/delta':>18}"
+                                          for w in case.windings)
+    lines.append(head)
+    for f in case.frequencies:
+        cells = []
+        for w in case.windings:
+            delta = skin_depth(material(w.material).resistivity(case.model.temperature_c), f)
+            cells.append(f"{delta * 1e3:>7.4g} mm {sizes[w.name] / delta:>18.3g}")
+        lines.append(f"{format_frequency(f):>12} " + " ".join(cells))
+    return "\n".join(lines)
+
+
+def command_check(args) -> int:
+    case = load_case(args.case)
+    print(_check_text(case))
+    print("case is valid")
+    return EXIT_OK
+
+
+def parser() -> argparse.ArgumentParser:
+    top = argparse.ArgumentParser(prog="racfield", description="AC winding resistance from a 2-D eddy-current field solution.")
+    sub = top.add_subparsers(dest="command", required=True)
+    run = sub.add_parser("run", help="solve a case and write results")
+    run.add_argument("case", help="case file (TOML)")
+    run.add_argument("--out", help="results folder (default: beside the case, named after it)")
+    run.add_argument("--quiet", action="store_true", help="no progress lines")
+    run.set_defaults(handler=command_run)
+    check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
+    check.add_argument("case", help="case file (TOML)")
+    check.set_defaults(handler=command_check)
+    return top
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = parser().parse_args(argv)
+    try:
+        return args.handler(args)
+    except CaseError as error:
+        if not error.file:
+            error = error.in_file(args.case)
+        print(f"racfield: error: {error.line()}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except KeyboardInterrupt:
+        print("racfield: interrupted", file=sys.stderr)
+        return 130
+    except Exception as error:  # a bug, not bad input
+        if os.environ.get("RACFIELD_DEBUG"):
+            raise
+        print(f"racfield: internal error: {error.__class__.__name__}: {error} "
+              "(set RACFIELD_DEBUG=1 for details and please report it)", file=sys.stderr)
+        return EXIT_FAILURE
+
+
+if __name__ == "__main__":
+    sys.exit(main())

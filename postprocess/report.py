@@ -1,0 +1,119 @@
+"""Winding-level results of a sweep, and the results document (results.json).
+
+A winding's turns are in series and carry the winding current I.  Its AC
+resistance at a frequency is the loss in its own conductors, with every
+winding carrying its case current, divided by |I|^2 (RMS): so it includes the
+proximity loss caused by the other windings' fields at the case excitation.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from fem.sweep import SweepResult
+from geometry.case import Case
+
+CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
+           "creepage/clearance and safety isolation follow the applicable safety standards, "
+           "local codes and licensed practice.")
+
+PHASOR_CONVENTION = ("time-harmonic phasors with exp(+j*omega*t); currents are RMS: "
+                     "i(t) = sqrt(2) * Re(I * exp(j*omega*t)), I = I_rms * exp(j*phase)")
+
+
+@dataclass
+class WindingResult:
+    """One winding over the sweep: resistances in ohm, losses in W, current in A RMS."""
+
+    name: str
+    turns: int
+    current_a_rms: float
+    phase_deg: float
+    rdc_ohm: float
+    rac_ohm: list[float | None]
+    rac_over_rdc: list[float | None]
+    loss_w: list[float]
+
+
+@dataclass
+class Report:
+    """Everything the writers need."""
+
+    case: Case
+    sweep: SweepResult
+    windings: list[WindingResult]
+
+    @property
+    def total_loss_w(self) -> list[float]:
+        return [float(sum(w.loss_w[i] for w in self.windings)) for i in range(len(self.sweep.frequencies))]
+
+    def conductor_loss_w(self) -> np.ndarray:
+        """(Nf, Nc) loss of every conductor in W (whole turn length)."""
+        return self.sweep.loss_per_m * self.case.model.length
+
+
+def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
+    """Aggregate conductors into windings (turns in series)."""
+    length = case.model.length
+    results = []
+    for w in case.windings:
+        idx = [c.index for c in sweep.conductors if c.winding == w.name]
+        rdc = float(sweep.rdc_per_m[idx].sum() * length)
+        loss = sweep.loss_per_m[:, idx].sum(axis=1) * length
+        if w.current > 0.0:
+            rac = [float(p / w.current ** 2) for p in loss]
+            ratio = [r / rdc for r in rac]
+        else:
+            rac = [None] * len(loss)
+            ratio = [None] * len(loss)
+        results.append(WindingResult(w.name, len(idx), w.current, w.phase_deg, rdc, rac, ratio,
+                                     [float(p) for p in loss]))
+    return results
+
+
+def build_report(case: Case, sweep: SweepResult) -> Report:
+    return Report(case, sweep, winding_results(case, sweep))
+
+
+def results_document(report: Report) -> dict:
+    """The results.json document (see README, result files)."""
+    case, sweep = report.case, report.sweep
+    conductor_loss = report.conductor_loss_w()
+    return {
+        "title": case.title,
+        "symmetry": case.model.symmetry,
+        "temperature_c": case.model.temperature_c,
+        "length_m": case.model.length,
+        "frequencies_hz": [float(f) for f in sweep.frequencies],
+        "windings": {
+            w.name: {"turns": w.turns, "current_a_rms": w.current_a_rms, "phase_deg": w.phase_deg,
+                     "rdc_ohm": w.rdc_ohm, "rac_ohm": w.rac_ohm, "rac_over_rdc": w.rac_over_rdc,
+                     "loss_w": w.loss_w}
+            for w in report.windings
+        },
+        "total_loss_w": report.total_loss_w,
+        "conductors": [
+            {"winding": c.winding, "turn": c.turn, "shape": c.shape, "x_m": c.x, "y_m": c.y,
+             "area_m2": c.area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.length),
+             "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
+            for c in sweep.conductors
+        ],
+        "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
+                 "surface_element_size_m": sweep.surface_size,
+                 "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),
+                 "timings_s": {k: round(v, 3) for k, v in sweep.timings.items()}},
+        "conventions": {"units": "SI", "currents": "RMS", "phasors": PHASOR_CONVENTION},
+        "caution": CAUTION,
+    }
+
+
+def format_frequency(f: float) -> str:
+    """'250 kHz', '1.5 MHz', '0 Hz (DC)'."""
+    if f == 0.0:
+        return "0 Hz (DC)"
+    exponent = min(int(math.floor(math.log10(abs(f)) / 3)), 3)
+    unit = ["Hz", "kHz", "MHz", "GHz"][max(exponent, 0)]
+    return f"{f / 10 ** (3 * max(exponent, 0)):.4g} {unit}"

@@ -1,0 +1,32 @@
+"""Result files, one module per format behind a small registry.
+
+Each writer is a plain function ``write(report, directory) -> list[Path]``.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Callable
+
+from ..report import Report
+from . import conductors_csv, field_plot, field_vtu, rac_csv, rac_plot, results_json
+
+Writer = Callable[[Report, Path], list[Path]]
+
+WRITERS: dict[str, Writer] = {
+    "results.json": results_json.write,
+    "rac.csv": rac_csv.write,
+    "conductors.csv": conductors_csv.write,
+    "rac_over_rdc.png": rac_plot.write,
+    "current_density.png": field_plot.write,
+    "field.vtu": field_vtu.write,
+}
+
+
+def write_all(report: Report, directory: Path, names: list[str] | None = None) -> list[Path]:
+    """Write the named result files (all by default) into ``directory``."""
+    directory.mkdir(parents=True, exist_ok=True)
+    written: list[Path] = []
+    for name in names or list(WRITERS):
+        written += WRITERS[name](report, directory)
+    return written

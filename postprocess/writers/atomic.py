@@ -1,0 +1,25 @@
+"""Write a file whole or not at all: a temporary file, then a rename."""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+
+def replace_text(path: Path, text: str) -> Path:
+    """Write ``text`` to ``path`` atomically (UTF-8)."""
+    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
+            handle.write(text)
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    return path
+
+
+def temporary_sibling(path: Path) -> Path:
+    """A temporary name beside ``path`` for writers that need a file name."""
+    return path.with_name(f".{path.stem}.tmp{path.suffix}")

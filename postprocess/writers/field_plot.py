@@ -1,0 +1,57 @@
+"""current_density.png: |J| in the conductors with flux lines, at the highest frequency."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+from matplotlib import colormaps
+from matplotlib.patches import Rectangle
+from matplotlib.tri import Triangulation
+
+from ..plotting import FIELD_MAP, linear_subtriangles, new_figure, save
+from ..report import Report, format_frequency
+
+
+def write(report: Report, directory: Path) -> list[Path]:
+    snap = report.sweep.snapshot
+    if snap is None:
+        return []
+    window = report.case.window
+    x_mm, y_mm = snap.points[0] * 1e3, snap.points[1] * 1e3
+    region4 = np.tile(snap.region, 4)
+    sub = linear_subtriangles(snap.triangles)
+    everything = Triangulation(x_mm, y_mm, sub)
+    metal = Triangulation(x_mm, y_mm, sub[region4 >= 0])
+
+    aspect = window.height / window.width
+    figure = new_figure(6.5, min(max(3.0, 5.0 * aspect), 9.0))
+    ax = figure.add_subplot()
+    ax.set_facecolor("#f4f4f2")
+    j_mm2 = np.abs(snap.current_density) * 1e-6
+    mappable = ax.tripcolor(metal, j_mm2, cmap=colormaps[FIELD_MAP], shading="gouraud",
+                            vmin=0.0, vmax=float(j_mm2.max()) or 1.0)
+    flux = snap.potential.real
+    if np.ptp(flux) > 0:
+        ax.tricontour(everything, flux, levels=24, colors="#3b6ea8", linewidths=0.6, alpha=0.9)
+    w_mm, h_mm = window.width * 1e3, window.height * 1e3
+    if window.boundary == "ideal-core":
+        wall = 0.06 * max(w_mm, h_mm)
+        core = Rectangle((-wall, -wall), w_mm + 2 * wall, h_mm + 2 * wall, facecolor="#9a9a96",
+                         edgecolor="none", zorder=-2)
+        ax.add_patch(core)
+        ax.add_patch(Rectangle((0, 0), w_mm, h_mm, facecolor="#f4f4f2", edgecolor="none", zorder=-1))
+        ax.set_xlim(-wall, w_mm + wall)
+        ax.set_ylim(-wall, h_mm + wall)
+    else:
+        ax.add_patch(Rectangle((0, 0), w_mm, h_mm, fill=False, edgecolor="0.5", linestyle=":", linewidth=0.8))
+        pad = 0.15 * max(w_mm, h_mm)
+        ax.set_xlim(-pad, w_mm + pad)
+        ax.set_ylim(-pad, h_mm + pad)
+    ax.set_aspect("equal")
+    ax.set_xlabel("x, from the inner wall (mm)")
+    ax.set_ylabel("y, from the window bottom (mm)")
+    ax.set_title(f"|J| and flux lines at {format_frequency(snap.frequency)}", fontsize=10)
+    bar = figure.colorbar(mappable, ax=ax, shrink=0.85)
+    bar.set_label("|J| (A/mm\u00b2, RMS)")
+    return [save(figure, directory / "current_density.png")]

@@ -1,0 +1,45 @@
+"""rac_over_rdc.png: Rac/Rdc of every winding against frequency (log axis)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+from matplotlib import colormaps
+from matplotlib.ticker import EngFormatter
+
+from ..plotting import LINE_MAP, line_colours, new_figure, save
+from ..report import Report
+
+
+def write(report: Report, directory: Path) -> list[Path]:
+    freqs = np.asarray(report.sweep.frequencies)
+    positive = freqs > 0
+    if positive.sum() < 1:
+        return []
+    figure = new_figure()
+    ax = figure.add_subplot()
+    colours = line_colours(len(report.windings), colormaps[LINE_MAP])
+    markers = ["o", "s", "^", "D", "v", "P", "X"]
+    top = 1.0
+    for i, (w, colour) in enumerate(zip(report.windings, colours)):
+        ratio = np.array([np.nan if r is None else r for r in w.rac_over_rdc])
+        if np.all(np.isnan(ratio)):
+            continue
+        top = max(top, np.nanmax(ratio[positive]))
+        ax.plot(freqs[positive], ratio[positive], color=colour, marker=markers[i % len(markers)],
+                markersize=4, linewidth=1.8, label=f"{w.name} ({w.turns} turns, Rdc {w.rdc_ohm * 1e3:.4g} m\u03a9)")
+    ax.axhline(1.0, color="0.55", linewidth=0.8, linestyle="--")
+    ax.set_xscale("log")
+    if top > 20:
+        ax.set_yscale("log")
+    ax.xaxis.set_major_formatter(EngFormatter(unit="Hz"))
+    ax.set_xlabel("Frequency (Hz, log scale)")
+    ax.set_ylabel("Rac / Rdc (1)")
+    ax.set_title(report.case.title, fontsize=10)
+    ax.grid(True, which="major", color="0.85", linewidth=0.7)
+    ax.grid(True, which="minor", color="0.93", linewidth=0.5)
+    ax.legend(frameon=False, fontsize=8)
+    figure.text(0.99, 0.005, f"{report.case.model.temperature_c:g} degC, model estimate (see README caution)",
+                ha="right", va="bottom", fontsize=6.5, color="0.45")
+    return [save(figure, directory / "rac_over_rdc.png")]

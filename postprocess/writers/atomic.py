@@ -11,6 +11,7 @@ def replace_text(path: Path, text: str) -> Path:
     """Write ``text`` to ``path`` atomically (UTF-8)."""
     fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
     try:
+        os.chmod(tmp, 0o666 & ~_umask())
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
             handle.write(text)
         os.replace(tmp, path)
@@ -18,6 +19,12 @@ def replace_text(path: Path, text: str) -> Path:
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def temporary_sibling(path: Path) -> Path:

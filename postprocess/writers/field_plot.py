@@ -33,7 +33,7 @@ def write(report: Report, directory: Path) -> list[Path]:
                             vmin=0.0, vmax=float(j_mm2.max()) or 1.0)
     flux = snap.potential.real
     if np.ptp(flux) > 0:
-        ax.tricontour(everything, flux, levels=24, colors="#3b6ea8", linewidths=0.6, alpha=0.9)
+        ax.tricontour(everything, flux, levels=24, colors="#3b6ea8", linewidths=0.6, linestyles="solid", alpha=0.9)
     w_mm, h_mm = window.width * 1e3, window.height * 1e3
     if window.boundary == "ideal-core":
         wall = 0.06 * max(w_mm, h_mm)

@@ -36,10 +36,9 @@ def write(report: Report, directory: Path) -> list[Path]:
     ax.xaxis.set_major_formatter(EngFormatter(unit="Hz"))
     ax.set_xlabel("Frequency (Hz, log scale)")
     ax.set_ylabel("Rac / Rdc (1)")
-    ax.set_title(report.case.title, fontsize=10)
+    ax.set_title(f"{report.case.title}\n{report.case.model.temperature_c:g} degC; model estimate, see the README caution",
+                 fontsize=9)
     ax.grid(True, which="major", color="0.85", linewidth=0.7)
     ax.grid(True, which="minor", color="0.93", linewidth=0.5)
     ax.legend(frameon=False, fontsize=8)
-    figure.text(0.99, 0.005, f"{report.case.model.temperature_c:g} degC, model estimate (see README caution)",
-                ha="right", va="bottom", fontsize=6.5, color="0.45")
     return [save(figure, directory / "rac_over_rdc.png")]

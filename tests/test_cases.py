@@ -1,0 +1,114 @@
+"""Every case in cases/ runs through the command line, writes the result files,
+and carries numbers that an independent calculation supports."""
+
+from __future__ import annotations
+
+import csv
+import json
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+from scipy.special import jv
+
+from postprocess.cli import main
+
+CASES = Path(__file__).resolve().parents[1] / "cases"
+
+# IEC 60028 (International Annealed Copper Standard): 1.7241e-8 ohm*m at 20 degC, 0.00393 /K
+RHO20_CU, ALPHA_CU = 1.7241e-8, 0.00393
+MU0 = 4e-7 * math.pi
+
+RESULT_FILES = ["results.json", "rac.csv", "conductors.csv", "rac_over_rdc.png", "current_density.png", "field.vtu"]
+
+
+def _rho(temperature_c: float) -> float:
+    return RHO20_CU * (1 + ALPHA_CU * (temperature_c - 20.0))
+
+
+@pytest.fixture(scope="module")
+def results(tmp_path_factory):
+    """Run each case once; map case name -> (results.json document, output folder)."""
+    out = {}
+    for case in sorted(CASES.glob("*.toml")):
+        folder = tmp_path_factory.mktemp(case.stem)
+        assert main(["run", str(case), "--out", str(folder), "--quiet"]) == 0
+        out[case.stem] = (json.loads((folder / "results.json").read_text()), folder)
+    return out
+
+
+def test_every_case_is_covered(results):
+    assert set(results) == {"demo_transformer", "pcb_planar_transformer", "air_core_choke"}
+
+
+@pytest.mark.parametrize("name", ["demo_transformer", "pcb_planar_transformer", "air_core_choke"])
+def test_contract_and_files(results, name):
+    doc, folder = results[name]
+    for key in ("title", "symmetry", "temperature_c", "length_m", "frequencies_hz", "windings", "conductors"):
+        assert key in doc
+    nf = len(doc["frequencies_hz"])
+    for w in doc["windings"].values():
+        assert {"turns", "current_a_rms", "rdc_ohm", "rac_ohm", "rac_over_rdc", "loss_w"} <= set(w)
+        assert len(w["rac_ohm"]) == len(w["rac_over_rdc"]) == len(w["loss_w"]) == nf
+    for c in doc["conductors"]:
+        assert {"winding", "turn", "loss_w"} <= set(c) and len(c["loss_w"]) == nf
+    for file in RESULT_FILES:
+        assert (folder / file).stat().st_size > 0
+    rows = list(csv.DictReader((folder / "rac.csv").open()))
+    assert len(rows) == nf * len(doc["windings"])
+
+
+def _case_rdc(doc, winding):
+    """Rdc = rho(T) * l * N / A from the conductor areas (IEC 60028 copper)."""
+    rho = _rho(doc["temperature_c"])
+    return sum(rho * doc["length_m"] / c["area_m2"] for c in doc["conductors"] if c["winding"] == winding)
+
+
+def test_demo_dc_resistance_and_low_frequency_limit(results):
+    doc, _ = results["demo_transformer"]
+    w = doc["windings"]
+    # primary: 28 turns of 0.40 mm wire, 42 mm per turn, at 100 degC; rho*l/A (IEC 60028)
+    rdc_primary = _rho(100.0) * 0.042 * 28 / (math.pi * 0.2e-3 ** 2)
+    assert w["primary"]["rdc_ohm"] == pytest.approx(rdc_primary, rel=5e-4)
+    # secondary: 7 foils of 0.1 mm x 7.0 mm
+    rdc_secondary = _rho(100.0) * 0.042 * 7 / (0.1e-3 * 7.0e-3)
+    assert w["secondary"]["rdc_ohm"] == pytest.approx(rdc_secondary, rel=5e-4)
+    # at 10 kHz the primary wire is 0.26 skin depths in radius: the isolated-wire
+    # skin factor is 1 + (a/delta)^4/48 (low-frequency series of the Bessel
+    # solution, Ramo, Whinnery & Van Duzer) and proximity adds under 1 %
+    assert 1.0 <= w["primary"]["rac_over_rdc"][0] < 1.01
+    assert 1.0 <= w["secondary"]["rac_over_rdc"][0] < 1.01
+    # ampere-turn balance: N_p I_p = N_s I_s (Ampere's law around the core window)
+    assert 28 * w["primary"]["current_a_rms"] == pytest.approx(7 * w["secondary"]["current_a_rms"])
+
+
+def test_pcb_dc_resistance_and_low_frequency_limit(results):
+    doc, _ = results["pcb_planar_transformer"]
+    w = doc["windings"]
+    # 8 tracks of 0.8 mm x 70 um and 2 of 4.2 mm x 70 um, 28 mm per turn, 80 degC (IEC 60028)
+    assert w["primary"]["rdc_ohm"] == pytest.approx(_rho(80.0) * 0.028 * 8 / (0.8e-3 * 70e-6), rel=5e-4)
+    assert w["secondary"]["rdc_ohm"] == pytest.approx(_rho(80.0) * 0.028 * 2 / (4.2e-3 * 70e-6), rel=5e-4)
+    # 70 um copper at 20 kHz is 0.15 skin depths thick: Dowell's factor for one
+    # layer is 1 + (4/45) Delta^4 to leading order (P. L. Dowell, Proc. IEE, 1966):
+    # far below 0.1 %; proximity adds a little more
+    for name in ("primary", "secondary"):
+        assert 1.0 <= w[name]["rac_over_rdc"][0] < 1.001
+
+
+def test_air_core_choke_not_below_isolated_wire_skin_effect(results):
+    doc, _ = results["air_core_choke"]
+    choke = doc["windings"]["choke"]
+    assert choke["rdc_ohm"] == pytest.approx(_rho(60.0) * 0.025 * 10 / (math.pi * 0.5e-3 ** 2), rel=5e-4)
+    # skin and proximity losses of round wires are orthogonal (J. A. Ferreira,
+    # IEEE Trans. Power Electronics, 1994), so each turn loses at least what an
+    # isolated wire loses by skin effect: Re(ka J0(ka) / (2 J1(ka))) (Bessel solution)
+    a = 0.5e-3
+    for f, ratio in zip(doc["frequencies_hz"], choke["rac_over_rdc"]):
+        delta = math.sqrt(2 * _rho(60.0) / (2 * math.pi * f * MU0))
+        ka = (1 - 1j) / delta * a
+        skin = (ka * jv(0, ka) / (2 * jv(1, ka))).real
+        assert ratio >= skin * (1 - 1e-3)
+    # and per-conductor losses add up to the winding loss (energy balance)
+    total = np.sum([c["loss_w"] for c in doc["conductors"]], axis=0)
+    assert np.allclose(total, choke["loss_w"], rtol=1e-12)

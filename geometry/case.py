@@ -19,13 +19,14 @@ import numpy as np
 
 from .errors import CaseError
 from .materials import MATERIALS, ALIASES
-from .units import quantity
+from .units import EXAMPLES, quantity
 
 SYMMETRIES = ("planar",)
 BOUNDARIES = ("ideal-core", "open")
 STACKINGS = ("across-width", "along-height")
 SHAPES = ("round", "rectangular", "foil")
 ALIGNS = ("centre", "start", "end", "spread")
+MAX_FREQUENCIES = 1000
 
 
 @dataclass(frozen=True)
@@ -141,24 +142,31 @@ class _Table:
     def has(self, name: str) -> bool:
         return name in self.data
 
-    def raw(self, name: str, default: object = None, required: bool = False) -> object:
+    def raw(self, name: str, default: object = None, required: bool = False,
+            example: str = "...") -> object:
         self.used.add(name)
         if name not in self.data:
             if required:
-                raise CaseError(self.key(name), "missing", f"add {name} = ... to [{self.path or 'top level'}]")
+                # a misspelling of the missing key is the likelier mistake: name it
+                unread = [k for k in self.data if k not in self.used]
+                typo = difflib.get_close_matches(name, unread, n=1, cutoff=0.8)
+                if typo:
+                    raise CaseError(self.key(typo[0]), "unknown key", f'did you mean "{name}"?')
+                fix = f"add {name} = {example} to [{self.path}]" if self.path else f"add a [{name}] table"
+                raise CaseError(self.key(name), "missing", fix)
             return default
         return self.data[name]
 
     def quantity(self, name: str, kind: str, default: float | None = None,
                  required: bool = False, positive: bool = False,
                  nonnegative: bool = False) -> float:
-        value = self.raw(name, default, required)
+        value = self.raw(name, default, required, EXAMPLES[kind])
         if value is None:
-            raise CaseError(self.key(name), "missing", f"add {name} = ... to [{self.path}]")
+            raise CaseError(self.key(name), "missing", f"add {name} = {EXAMPLES[kind]} to [{self.path}]")
         number = quantity(value, kind, self.key(name))
         if positive and not number > 0.0:
             raise CaseError(self.key(name), f"must be greater than zero, got {value!r}",
-                            "give a positive size")
+                            f"give a positive {kind}")
         if nonnegative and number < 0.0:
             raise CaseError(self.key(name), f"must not be negative, got {value!r}",
                             "give zero or a positive value")
@@ -226,9 +234,15 @@ def _frequencies(table: _Table) -> tuple[float, ...]:
                 raise CaseError(table.key(name), "given together with frequencies",
                                 "use either a frequencies list or start/stop/points")
     else:
+        if not any(table.has(name) for name in ("start", "stop", "points")):
+            raise CaseError(table.key("frequencies"), "no frequencies given",
+                            'add frequencies = ["100 kHz", "400 kHz"] or start, stop and points')
         start = table.quantity("start", "frequency", required=True, positive=True)
         stop = table.quantity("stop", "frequency", required=True, positive=True)
         points = table.integer("points", 20, minimum=1)
+        if points > MAX_FREQUENCIES:
+            raise CaseError(table.key("points"), f"{points} points is more than {MAX_FREQUENCIES}",
+                            f"use {MAX_FREQUENCIES} points or fewer (split the band into several cases)")
         if stop < start:
             raise CaseError(table.key("stop"), "is below start", "make stop greater than start")
         if points > 1 and stop == start:
@@ -410,7 +424,10 @@ def _check_balance(case: Case) -> None:
 
 
 def load_case(path: str | Path) -> Case:
-    """Read and check the case file at ``path``."""
+    """Read and check the case file at ``path``, its conductor layout included
+    (so that a command stops on bad input before it prints or writes anything)."""
+    from .layout import place  # layout imports this module
+
     path = Path(path)
     name = str(path)
     try:
@@ -424,4 +441,9 @@ def load_case(path: str | Path) -> Case:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise CaseError("", f"TOML syntax error: {error}", "fix the syntax at that line", name) from None
-    return parse_case(doc, name)
+    case = parse_case(doc, name)
+    try:
+        place(case)
+    except CaseError as error:
+        raise error.in_file(name) from None
+    return case

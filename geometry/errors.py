@@ -19,7 +19,8 @@ class CaseError(Exception):
     def line(self) -> str:
         where = f"{self.file}: " if self.file else ""
         key = f"{self.key}: " if self.key else ""
-        return f"{where}{key}{self.problem}; {self.fix}".replace("\n", " ")
+        # any line break (also \r, \v, \f, \x85, \u2028 ... from case-file text) becomes a space
+        return " ".join(f"{where}{key}{self.problem}; {self.fix}".splitlines())
 
     def in_file(self, file: str) -> "CaseError":
         """The same error, naming ``file``."""

@@ -34,6 +34,10 @@ EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "c
             "resistivity": '"1.72e-8 ohm*m"'}
 
 
+def _a(kind: str) -> str:
+    return ("an " if kind[0] in "aeiou" else "a ") + kind
+
+
 def _factor(kind: str, unit: str) -> float | None:
     base, extra = _KINDS[kind]
     if unit in extra:
@@ -54,7 +58,7 @@ def quantity(value: object, kind: str, key: str) -> float:
     Raises :class:`CaseError` naming ``key`` on anything else.
     """
     if isinstance(value, bool):
-        raise CaseError(key, f"expected a {kind}, got {value!r}",
+        raise CaseError(key, f"expected {_a(kind)}, got {value!r}",
                         f"write a number in SI units or a string such as {EXAMPLES[kind]}")
     if isinstance(value, (int, float)):
         number = float(value)
@@ -63,13 +67,15 @@ def quantity(value: object, kind: str, key: str) -> float:
                             f"give a finite {kind}")
         return number
     if not isinstance(value, str):
-        raise CaseError(key, f"expected a {kind}, got {type(value).__name__}",
+        raise CaseError(key, f"expected {_a(kind)}, got {type(value).__name__}",
                         f"write a number in SI units or a string such as {EXAMPLES[kind]}")
     match = _PATTERN.match(value)
     if not match:
-        raise CaseError(key, f"cannot read {value!r} as a {kind}",
+        raise CaseError(key, f"cannot read {value!r} as {_a(kind)}",
                         f"write a number and a unit, such as {EXAMPLES[kind]}")
     number, unit = float(match.group(1)), match.group(2)
+    if not math.isfinite(number):
+        raise CaseError(key, f"{value!r} is not a finite number", f"give a finite {kind}")
     if kind == "number":
         if unit:
             raise CaseError(key, f"expected a plain number, got {value!r}", "write it without a unit")
@@ -82,9 +88,14 @@ def quantity(value: object, kind: str, key: str) -> float:
         raise CaseError(key, f"unknown temperature unit {unit!r}",
                         'use degC or K, such as "100 degC"')
     if unit == "":
-        return number
+        if kind == "angle":
+            return number
+        raise CaseError(key, f"{value!r} has no unit",
+                        f"write the unit, such as {EXAMPLES[kind]}, or give a plain number in SI units")
     factor = _factor(kind, unit)
     if factor is None:
-        raise CaseError(key, f"unit {unit!r} is not a {kind} unit",
+        raise CaseError(key, f"unit {unit!r} is not {_a(kind)} unit",
                         f"write it such as {EXAMPLES[kind]}")
+    if not math.isfinite(number * factor):
+        raise CaseError(key, f"{value!r} is not a finite number", f"give a finite {kind}")
     return number * factor

@@ -28,7 +28,9 @@ class Response:
     ``admittance`` (Nc, Nc) S*m; ``potential_per_volt`` (n, Nc) potentials per
     unit conductor voltage per metre; ``applied`` (n,) potential for the
     applied field with u = 0 (zeros when there is none); ``applied_current``
-    (Nc,) the currents that field drives with u = 0.
+    (Nc,) the currents that field drives with u = 0; ``flux_coupling``
+    (Nc, Nc) B^T X, so that admittance = G - j omega B^T X (kept for the
+    inductance at 0 Hz: L = G^-1 B^T X G^-1 per metre).
     """
 
     omega: float
@@ -36,6 +38,7 @@ class Response:
     potential_per_volt: np.ndarray
     applied: np.ndarray
     applied_current: np.ndarray
+    flux_coupling: np.ndarray
 
     def voltages(self, currents: np.ndarray) -> np.ndarray:
         """Conductor voltages per metre (V/m) that carry ``currents`` (A)."""
@@ -70,6 +73,7 @@ def respond(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
         solution = lu.solve(scale * rhs)
     per_volt, applied = solution[:, :nc], solution[:, nc]
     bt = coupling.T.tocsr()
-    admittance = np.diag(conductance).astype(complex) - 1j * omega * (bt @ per_volt)
+    flux_coupling = bt @ per_volt
+    admittance = np.diag(conductance).astype(complex) - 1j * omega * flux_coupling
     applied_current = -1j * omega * (bt @ applied)
-    return Response(omega, admittance, per_volt, applied, applied_current)
+    return Response(omega, admittance, per_volt, applied, applied_current, flux_coupling)

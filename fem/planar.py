@@ -13,7 +13,7 @@ import scipy.sparse as sp
 from skfem import Basis, ElementTriP2, FacetBasis, Functional, MeshTri2
 
 from geometry.materials import MU0
-from geometry.mesher import AIR, WindowMesh
+from geometry.mesher import CORE, WindowMesh
 
 from .forms import applied_field_load, conductivity_mass, reluctivity_stiffness, robin_mass
 from .harmonic import Response, respond
@@ -38,11 +38,34 @@ class FrequencySolution:
 
 
 @Functional
-def _ohmic_density(w):
-    """sigma |u - j w A|^2 integrated over each element (W/m)."""
-    re = w.u_re + w.omega * w.a_im
-    im = w.u_im - w.omega * w.a_re
-    return w.sigma * (re * re + im * im)
+def _ohmic_cross_density(w):
+    """sigma conj(e_i) e_j integrated over each element (W/m), e = u - j w A;
+    real and imaginary parts returned as the two halves of a complex number."""
+    re_i, im_i = w.u_re_i + w.omega * w.a_im_i, w.u_im_i - w.omega * w.a_re_i
+    re_j, im_j = w.u_re_j + w.omega * w.a_im_j, w.u_im_j - w.omega * w.a_re_j
+    return w.sigma * (re_i * re_j + im_i * im_j) + 1j * w.sigma * (re_i * im_j - im_i * re_j)
+
+
+@dataclass
+class WindingSolution:
+    """One frequency, with the conductors connected into windings.
+
+    ``connection`` (Nc, Nw) maps winding currents to conductor currents.
+    ``impedance_per_m``/``inductance_per_m`` (Nc, Nc) ohm/m and H/m for the
+    conductors; ``loss_matrix_per_m`` (Nc, Nw, Nw) W/m per A^2: the loss of
+    conductor k for winding currents i is Re(i^H Q_k i) (see README for the
+    ideal-core window, where only ampere-turn-balanced i are physical);
+    ``loss_per_m`` (Nc,) W/m at ``winding_currents``; ``potential`` (nodes,)
+    Wb/m and ``voltage_per_m`` (Nc,) V/m at those currents.
+    """
+
+    frequency: float
+    impedance_per_m: np.ndarray
+    inductance_per_m: np.ndarray
+    loss_matrix_per_m: np.ndarray
+    loss_per_m: np.ndarray
+    voltage_per_m: np.ndarray
+    potential: np.ndarray | None = None
 
 
 class PlanarProblem:
@@ -54,7 +77,8 @@ class PlanarProblem:
     parts of the outside field), and an applied uniform field enters through g.
     """
 
-    def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray) -> None:
+    def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray,
+                 core_permeability: float = 1.0) -> None:
         self.window_mesh = window_mesh
         self.mesh = MeshTri2(window_mesh.points, window_mesh.triangles)
         self.basis = Basis(self.mesh, ElementTriP2())
@@ -66,13 +90,22 @@ class PlanarProblem:
         self.sigma_qp = np.repeat(sigma_e[:, None], nqp, axis=1)
         self.region = region
 
-        stiffness = reluctivity_stiffness.assemble(self.basis, nu=1.0 / MU0)
+        nu_e = np.where(region == CORE, 1.0 / (MU0 * core_permeability), 1.0 / MU0)
+        stiffness = reluctivity_stiffness.assemble(self.basis, nu=np.repeat(nu_e[:, None], nqp, axis=1))
         mass = conductivity_mass.assemble(self.basis, sigma=self.sigma_qp)
         self.far_basis = None
         if window_mesh.far_radius is not None:
-            self.far_basis = FacetBasis(self.mesh, ElementTriP2())
+            xs = window_mesh.symmetry_x
+            arc = self.mesh.boundary_facets()
+            if xs is not None:
+                # the symmetry plane carries A = 0, the rest of the boundary is the far arc
+                on_plane = np.abs(self.mesh.p[0, self.mesh.facets[:, arc]] - xs).max(axis=0) < 1e-9 * window_mesh.far_radius
+                arc = arc[~on_plane]
+            self.far_basis = FacetBasis(self.mesh, ElementTriP2(), facets=arc)
             stiffness = stiffness + robin_mass.assemble(self.far_basis) / (MU0 * window_mesh.far_radius)
-            free = np.arange(self.basis.N)
+            fixed = (self.basis.get_dofs(lambda x: np.abs(x[0] - xs) < 1e-9 * window_mesh.far_radius).all()
+                     if xs is not None else np.array([], dtype=int))
+            free = np.setdiff1d(np.arange(self.basis.N), fixed)
         else:
             # closed window: pin A at one wall node (fixes the constant in A;
             # exact for ampere-turn-balanced currents, see README)
@@ -134,16 +167,59 @@ class PlanarProblem:
                                  potential if keep_field else None)
 
     def conductor_losses(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
-        """Ohmic loss per metre (W/m) of every conductor."""
+        """Ohmic loss per metre (W/m) of every conductor for one excitation."""
+        return self.loss_matrices(frequency, voltages[:, None], potential[:, None])[:, 0, 0].real
+
+    def loss_matrices(self, frequency: float, voltages: np.ndarray, potentials: np.ndarray) -> np.ndarray:
+        """Loss cross terms of ``Ne`` excitations: ``voltages`` (Nc, Ne) V/m and
+        ``potentials`` (nodes, Ne) Wb/m give Q (Nc, Ne, Ne), Q_k[i, j] =
+        int_k sigma conj(e_i) e_j dx (W/m per unit^2), Hermitian."""
         omega = 2.0 * np.pi * frequency
-        u_e = np.where(self.region >= 0, voltages[np.maximum(self.region, 0)], 0.0)
-        nqp = self.basis.X.shape[1]
-        u_qp = np.repeat(u_e[:, None], nqp, axis=1)
-        per_element = _ohmic_density.elemental(
-            self.basis, sigma=self.sigma_qp, omega=omega, u_re=u_qp.real, u_im=u_qp.imag,
-            a_re=self.basis.interpolate(potential.real), a_im=self.basis.interpolate(potential.imag))
         mask = self.region >= 0
-        return np.bincount(self.region[mask], weights=per_element[mask], minlength=self.conductor_count)
+        nqp = self.basis.X.shape[1]
+        count = voltages.shape[1]
+        fields = []
+        for i in range(count):
+            u_e = np.where(mask, voltages[np.maximum(self.region, 0), i], 0.0)
+            u_qp = np.repeat(u_e[:, None], nqp, axis=1)
+            fields.append((u_qp.real, u_qp.imag, self.basis.interpolate(potentials[:, i].real),
+                           self.basis.interpolate(potentials[:, i].imag)))
+        out = np.zeros((self.conductor_count, count, count), dtype=complex)
+        for i in range(count):
+            for j in range(i, count):
+                fi, fj = fields[i], fields[j]
+                per_element = _ohmic_cross_density.elemental(
+                    self.basis, sigma=self.sigma_qp, omega=omega,
+                    u_re_i=fi[0], u_im_i=fi[1], a_re_i=fi[2], a_im_i=fi[3],
+                    u_re_j=fj[0], u_im_j=fj[1], a_re_j=fj[2], a_im_j=fj[3])
+                k = self.region[mask]
+                value = (np.bincount(k, weights=per_element[mask].real, minlength=self.conductor_count)
+                         + 1j * np.bincount(k, weights=per_element[mask].imag, minlength=self.conductor_count))
+                out[:, i, j] = value
+                out[:, j, i] = value.conj()
+        return out
+
+    def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents: np.ndarray,
+                       keep_field: bool = False) -> WindingSolution:
+        """One factorization at ``frequency`` (Hz) gives the conductor impedance
+        matrix, the loss matrices of unit winding currents, and the field at
+        ``winding_currents`` (A RMS phasors, one per column of ``connection``)."""
+        response = self.respond(frequency)
+        omega = response.omega
+        impedance = np.linalg.inv(response.admittance)
+        if omega > 0.0:
+            inductance = impedance.imag / omega
+        else:
+            g_inv = 1.0 / self.conductance
+            inductance = (g_inv[:, None] * response.flux_coupling.real) * g_inv[None, :]
+        unit_voltages = impedance @ connection
+        unit_potentials = np.zeros((self.basis.N, connection.shape[1]), dtype=complex)
+        unit_potentials[self.free] = response.potential_per_volt @ unit_voltages
+        q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
+        i = np.asarray(winding_currents, dtype=complex)
+        loss = np.einsum("i,kij,j->k", i.conj(), q, i).real
+        potential = unit_potentials @ i if keep_field else None
+        return WindingSolution(frequency, impedance, inductance, q, loss, unit_voltages @ i, potential)
 
     def current_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
         """Current density J = sigma (u - j w A) (A/m^2 RMS phasor) at the mesh nodes

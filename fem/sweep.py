@@ -38,7 +38,10 @@ class FieldSnapshot:
 class SweepResult:
     """Per-conductor results of a sweep (per metre of conductor length).
 
-    ``loss_per_m`` (Nf, Nc) W/m; ``impedance_per_m`` (Nf, Nc, Nc) ohm/m;
+    ``loss_per_m`` (Nf, Nc) W/m at the case currents; ``impedance_per_m``
+    and ``inductance_per_m`` (Nf, Nc, Nc) ohm/m and H/m; ``loss_matrix_per_m``
+    (Nf, Nc, Nw, Nw) W/m per A^2 (loss of conductor k at winding currents i
+    is Re(i^H Q i)); ``connection`` (Nc, Nw) turns of each winding in series;
     ``rdc_per_m`` (Nc,) ohm/m from the true conductor areas; ``currents``
     (Nc,) A RMS phasors.
     """
@@ -51,6 +54,10 @@ class SweepResult:
     loss_per_m: np.ndarray
     impedance_per_m: np.ndarray
     mesh_area_error: np.ndarray
+    inductance_per_m: np.ndarray
+    loss_matrix_per_m: np.ndarray
+    winding_names: list[str]
+    connection: np.ndarray
     unknowns: int
     elements: int
     surface_size: float
@@ -70,7 +77,7 @@ def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
     delta = skin_depth(float(rho.min()), max(case.frequencies))
     sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
-                      sizing, case.mesh.far_radius_factor)
+                      sizing, case.mesh.far_radius_factor, case.core)
 
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None) -> SweepResult:
@@ -83,22 +90,32 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     timings["mesh_s"] = time.perf_counter() - start
 
     start = time.perf_counter()
-    problem = PlanarProblem(window_mesh, 1.0 / rho)
+    problem = PlanarProblem(window_mesh, 1.0 / rho,
+                            case.core.relative_permeability if case.core else 1.0)
     timings["assembly_s"] = time.perf_counter() - start
 
-    currents = np.array([case.winding(c.winding).phasor for c in conductors], dtype=complex)
+    names = [w.name for w in case.windings]
+    connection = np.zeros((len(conductors), len(names)))
+    for c in conductors:
+        connection[c.index, names.index(c.winding)] = 1.0
+    winding_currents = np.array([w.phasor for w in case.windings], dtype=complex)
+    currents = connection @ winding_currents
     true_area = np.array([c.area for c in conductors])
     freqs = np.array(case.frequencies)
-    nf, nc = len(freqs), len(conductors)
+    nf, nc, nw = len(freqs), len(conductors), len(names)
     loss = np.zeros((nf, nc))
     impedance = np.zeros((nf, nc, nc), dtype=complex)
+    inductance = np.zeros((nf, nc, nc))
+    loss_matrix = np.zeros((nf, nc, nw, nw), dtype=complex)
     snapshot = None
     start = time.perf_counter()
     for i, f in enumerate(freqs):
         last = i == nf - 1
-        solution = problem.solve(f, currents, keep_field=last)
+        solution = problem.solve_windings(f, connection, winding_currents, keep_field=last)
         loss[i] = solution.loss_per_m
         impedance[i] = solution.impedance_per_m
+        inductance[i] = solution.inductance_per_m
+        loss_matrix[i] = solution.loss_matrix_per_m
         if last:
             snapshot = FieldSnapshot(
                 f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
@@ -107,5 +124,6 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
             progress(i + 1, nf, f)
     timings["solve_s"] = time.perf_counter() - start
     return SweepResult(freqs, conductors, rho, currents, rho / true_area, loss, impedance,
-                       problem.areas / true_area - 1.0, problem.unknowns, window_mesh.elements,
+                       problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
+                       problem.unknowns, window_mesh.elements,
                        window_mesh.surface_size, timings, snapshot)

@@ -22,7 +22,8 @@ from .materials import MATERIALS, ALIASES
 from .units import EXAMPLES, quantity
 
 SYMMETRIES = ("planar",)
-BOUNDARIES = ("ideal-core", "open")
+BOUNDARIES = ("ideal-core", "open", "core")
+LEGS = ("centre", "outer")
 STACKINGS = ("across-width", "along-height")
 SHAPES = ("round", "rectangular", "foil")
 ALIGNS = ("centre", "start", "end", "spread")
@@ -104,6 +105,30 @@ class PlacedConductor:
 
 
 @dataclass(frozen=True)
+class Gap:
+    """An air gap through a leg: ``leg`` "centre" or "outer"; ``length`` (m)
+    along the leg; ``at`` (m) height of its middle above the window bottom."""
+
+    leg: str
+    length: float
+    at: float
+    key: str = "gap[1]"
+
+
+@dataclass(frozen=True)
+class Core:
+    """The core body around the window (``window.boundary = "core"``), E-type
+    cross-section through the centre leg.  Sizes in m; the centre leg's full
+    width (the model keeps half of it, up to the symmetry plane)."""
+
+    relative_permeability: float
+    centre_leg_width: float
+    outer_leg_width: float
+    yoke_thickness: float
+    gaps: tuple[Gap, ...] = ()
+
+
+@dataclass(frozen=True)
 class MeshOptions:
     density: float = 1.0           #: >1 finer, <1 coarser than the default sizing
     far_radius_factor: float = 5.0  #: open boundary: far circle / window half-diagonal
@@ -120,6 +145,7 @@ class Case:
     conductors: tuple[PlacedConductor, ...] = ()
     mesh: MeshOptions = field(default_factory=MeshOptions)
     path: str = ""
+    core: Core | None = None
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
@@ -384,6 +410,8 @@ def _parse(doc: dict, path: str) -> Case:
         spec = _conductor(_Table(shape_keys, t.path))
         placed.append(PlacedConductor(winding, spec, xy, t.path))
 
+    core = _core(top, window)
+
     mesh_table = _Table(top.raw("mesh", {}), "mesh")
     density = mesh_table.quantity("density", "number", 1.0, positive=True)
     far = mesh_table.quantity("far_radius_factor", "number", 5.0, positive=True)
@@ -399,10 +427,51 @@ def _parse(doc: dict, path: str) -> Case:
                             "add a [[layer]] or [[conductor]] with this winding, or remove the winding")
 
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path)
+                MeshOptions(density, far), path, core)
     if window.boundary == "ideal-core":
         _check_balance(case)
     return case
+
+
+def _core(top: _Table, window: Window) -> Core | None:
+    """The [core] table and [[gap]] list; only with window.boundary = "core"."""
+    gaps = _list_of_tables(top, "gap")
+    if window.boundary != "core":
+        if top.has("core") or gaps:
+            key = "core" if top.has("core") else "gap"
+            raise CaseError(key, f'a core body is given but window.boundary is "{window.boundary}"',
+                            'set window.boundary = "core" or remove the [core] table and [[gap]]s')
+        top.raw("core")
+        return None
+    table = _Table(top.raw("core", None, required=True), "core")
+    mu_r = table.quantity("relative_permeability", "number", required=True)
+    if not 1.0 <= mu_r <= 1e6:
+        raise CaseError(table.key("relative_permeability"), f"{mu_r:g} is outside 1..1e6",
+                        "give the core's relative permeability, such as 2000 for a power ferrite")
+    centre = table.quantity("centre_leg_width", "length", required=True, positive=True)
+    outer = table.quantity("outer_leg_width", "length", required=True, positive=True)
+    yoke = table.quantity("yoke_thickness", "length", required=True, positive=True)
+    table.close()
+    parsed: list[Gap] = []
+    for t in gaps:
+        leg = t.text("leg", "centre", LEGS)
+        length = t.quantity("length", "length", required=True, positive=True)
+        at = t.quantity("at", "length", window.height / 2)
+        t.close()
+        low, high = at - length / 2, at + length / 2
+        if length >= window.height:
+            raise CaseError(t.key("length"), f"the gap ({length * 1e3:.4g} mm) is longer than the "
+                            f"{window.height * 1e3:.4g} mm leg", "give a shorter gap")
+        if low < -1e-12 or high > window.height + 1e-12:
+            raise CaseError(t.key("at"), f"the gap reaches past the leg ({low * 1e3:.4g} mm to "
+                            f"{high * 1e3:.4g} mm; the leg runs 0 to {window.height * 1e3:.4g} mm)",
+                            "move the gap middle (at, height above the window bottom) so that the gap lies on the leg")
+        for other in parsed:
+            if other.leg == leg and abs(other.at - at) < (other.length + length) / 2:
+                raise CaseError(t.key("at"), f"overlaps {other.key} on the {leg} leg",
+                                "space the gaps apart or merge them into one")
+        parsed.append(Gap(leg, length, at, t.path))
+    return Core(mu_r, centre, outer, yoke, tuple(parsed))
 
 
 def winding_turns(case: Case, name: str) -> int:
@@ -420,7 +489,8 @@ def _check_balance(case: Case) -> None:
                           for w in case.windings)
         raise CaseError("winding", f"ampere-turns do not sum to zero in an ideal-core window "
                         f"({parts}; net {abs(net):.4g} A)",
-                        'set currents and phases so that the sum of N*I is zero, or use window.boundary = "open"')
+                        "set currents and phases so that the sum of N*I is zero; an inductor or a flyback "
+                        'needs window.boundary = "core" with a [core] table and a [[gap]], or "open" for no core')
 
 
 def load_case(path: str | Path) -> Case:

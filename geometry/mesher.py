@@ -14,10 +14,13 @@ from dataclasses import dataclass
 import gmsh
 import numpy as np
 
+from .case import Core
 from .layout import Conductor
 
 AIR = -1
-"""Region number of air (non-conducting) elements."""
+"""Region number of air (non-conducting, non-magnetic) elements."""
+CORE = -2
+"""Region number of core (magnetic, non-conducting) elements."""
 
 
 @dataclass(frozen=True)
@@ -38,9 +41,10 @@ class WindowMesh:
     """A second-order triangle mesh of the window.
 
     ``points`` (2, n) in m; ``triangles`` (6, m): three corners then the edge
-    nodes 01, 12, 20; ``region`` (m,): conductor index or ``AIR``.
+    nodes 01, 12, 20; ``region`` (m,): conductor index, ``AIR`` or ``CORE``.
     ``far_radius``/``far_centre``: the open-boundary circle (``None`` for
-    a closed window).
+    a closed window).  ``symmetry_x``: with a core body, the x of the
+    centre-leg symmetry plane, where A = 0 (``None`` otherwise).
     """
 
     points: np.ndarray
@@ -49,6 +53,7 @@ class WindowMesh:
     surface_size: float
     far_radius: float | None = None
     far_centre: tuple[float, float] | None = None
+    symmetry_x: float | None = None
 
     @property
     def nodes(self) -> int:
@@ -68,8 +73,28 @@ def surface_size(conductor: Conductor, sizing: MeshSizing) -> float:
     return min(geometric, sizing.skin_depth / sizing.per_skin_depth) / sizing.density
 
 
+def _core_body(occ, core: Core, width: float, height: float) -> list[tuple[int, int]]:
+    """The E-type core's half cross-section (centre leg cut at its symmetry
+    plane x = -centre_leg_width/2), gaps removed; returns OCC surfaces."""
+    xs = -core.centre_leg_width / 2
+    right = width + core.outer_leg_width
+    yoke = core.yoke_thickness
+    parts = [occ.addRectangle(xs, 0.0, 0.0, -xs, height),
+             occ.addRectangle(width, 0.0, 0.0, core.outer_leg_width, height),
+             occ.addRectangle(xs, -yoke, 0.0, right - xs, yoke),
+             occ.addRectangle(xs, height, 0.0, right - xs, yoke)]
+    body, _ = occ.fuse([(2, parts[0])], [(2, t) for t in parts[1:]])
+    gaps = []
+    for gap in core.gaps:
+        x0, w = (xs, -xs) if gap.leg == "centre" else (width, core.outer_leg_width)
+        gaps.append((2, occ.addRectangle(x0, gap.at - gap.length / 2, 0.0, w, gap.length)))
+    if gaps:
+        body, _ = occ.cut(body, gaps)
+    return body
+
+
 def build_mesh(conductors: list[Conductor], width: float, height: float, boundary: str,
-               sizing: MeshSizing, far_radius_factor: float = 5.0) -> WindowMesh:
+               sizing: MeshSizing, far_radius_factor: float = 5.0, core: Core | None = None) -> WindowMesh:
     """Mesh the window (``boundary = "ideal-core"``: the window rectangle is the
     domain) or the air around the conductors out to a far circle (``"open"``)."""
     gmsh.initialize(["-noenv"], readConfigFiles=False, interruptible=False)
@@ -85,25 +110,41 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
             else:
                 tools.append((2, occ.addRectangle(c.x - c.width / 2, c.y - c.height / 2, 0.0,
                                                   c.width, c.height)))
-        far_radius = far_centre = None
-        if boundary == "open":
+        far_radius = far_centre = symmetry_x = None
+        core_tools: list[tuple[int, int]] = []
+        if boundary == "core":
+            symmetry_x = -core.centre_leg_width / 2
+            core_tools = _core_body(occ, core, width, height)
+            box_w = width + core.outer_leg_width - symmetry_x
+            box_h = height + 2 * core.yoke_thickness
+            far_centre = (symmetry_x, height / 2)
+            far_radius = far_radius_factor * math.hypot(box_w, box_h / 2)
+            disk = occ.addDisk(far_centre[0], far_centre[1], 0.0, far_radius, far_radius)
+            left = occ.addRectangle(symmetry_x - 2 * far_radius, height / 2 - 2 * far_radius, 0.0,
+                                    2 * far_radius, 4 * far_radius)
+            (domain_dimtag,), _ = occ.cut([(2, disk)], [(2, left)])
+            domain = domain_dimtag[1]
+        elif boundary == "open":
             far_centre = (width / 2, height / 2)
             far_radius = far_radius_factor * 0.5 * math.hypot(width, height)
             domain = occ.addDisk(far_centre[0], far_centre[1], 0.0, far_radius, far_radius)
         else:
             domain = occ.addRectangle(0.0, 0.0, 0.0, width, height)
-        _, mapping = occ.fragment([(2, domain)], tools)
+        _, mapping = occ.fragment([(2, domain)], tools + core_tools)
         occ.synchronize()
 
         conductor_surfaces = [[tag for dim, tag in mapping[1 + i] if dim == 2] for i in range(len(conductors))]
         owner = {tag: i for i, tags in enumerate(conductor_surfaces) for tag in tags}
+        core_surfaces = sorted({tag for m in mapping[1 + len(conductors):] for dim, tag in m if dim == 2})
+        owner.update({tag: CORE for tag in core_surfaces})
 
         sizes = [surface_size(c, sizing) for c in conductors]
         h_min = min(sizes)
+        h_window = min(width, height) / 6 / sizing.density
         h_max = (far_radius / 6 if far_radius else min(width, height) / 6) / sizing.density
         h_max = max(h_max, h_min)
         air_surfaces = [tag for _, tag in gmsh.model.getEntities(2) if tag not in owner]
-        metal_surfaces = sorted(owner)
+        metal_surfaces = sorted(t for t, k in owner.items() if k >= 0)
         skin = min(sizing.skin_depth, 1.0)
         field_ids = []
         for h in sorted(set(round(s, 15) for s in sizes)):
@@ -117,7 +158,7 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
             # inside the metal: fine over about one skin depth, then growing
             # slowly; in the air the field is smooth, so the size grows fast
             for surfaces, dist_min, grading in ((metal_surfaces, min(skin, 4 * h), sizing.grading),
-                                                (air_surfaces, 0.0, sizing.air_grading)):
+                                                (air_surfaces + core_surfaces, 0.0, sizing.air_grading)):
                 if not surfaces:
                     continue
                 thr = gmsh.model.mesh.field.add("Threshold")
@@ -138,6 +179,16 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
             gmsh.model.mesh.field.setNumber(cap, "VOut", 1e22)
             gmsh.model.mesh.field.setNumbers(cap, "SurfacesList", conductor_surfaces[i])
             interior.append(cap)
+        # the window (and core) region: no coarser than a sixth of the window
+        x0, x1 = (symmetry_x, width + core.outer_leg_width) if core_surfaces else (0.0, width)
+        y0, y1 = ((-core.yoke_thickness, height + core.yoke_thickness) if core_surfaces else (0.0, height))
+        box = gmsh.model.mesh.field.add("Box")
+        for name, value in (("VIn", h_window), ("VOut", 1e22), ("XMin", x0), ("XMax", x1),
+                            ("YMin", y0), ("YMax", y1), ("ZMin", -1.0), ("ZMax", 1.0)):
+            gmsh.model.mesh.field.setNumber(box, name, value)
+        interior.append(box)
+        if core_surfaces and core.gaps:
+            interior.append(_gap_corner_field(core, width, height, h_max, sizing))
         least = gmsh.model.mesh.field.add("Min")
         gmsh.model.mesh.field.setNumbers(least, "FieldsList", field_ids + interior)
         gmsh.model.mesh.field.setAsBackgroundMesh(least)
@@ -170,4 +221,26 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
     used = np.unique(triangles)
     renumber = np.full(points.shape[1], -1, dtype=np.int64)
     renumber[used] = np.arange(len(used))
-    return WindowMesh(points[:, used], renumber[triangles], region, h_min, far_radius, far_centre)
+    return WindowMesh(points[:, used], renumber[triangles], region, h_min, far_radius, far_centre,
+                      symmetry_x)
+
+
+def _gap_corner_field(core: Core, width: float, height: float, h_max: float, sizing: MeshSizing) -> int:
+    """Refine around the gap corners, where the fringing field is strongest."""
+    corners = []
+    for gap in core.gaps:
+        xs = ((-core.centre_leg_width / 2, 0.0) if gap.leg == "centre"
+              else (width, width + core.outer_leg_width))
+        for x in xs:
+            for y in (gap.at - gap.length / 2, gap.at + gap.length / 2):
+                eps = 1e-9 + 1e-6 * gap.length
+                corners += [tag for _, tag in gmsh.model.getEntitiesInBoundingBox(
+                    x - eps, y - eps, -eps, x + eps, y + eps, eps, dim=0)]
+    h_gap = min(min(g.length for g in core.gaps) / 4 / sizing.density, h_max)
+    dist = gmsh.model.mesh.field.add("Distance")
+    gmsh.model.mesh.field.setNumbers(dist, "PointsList", sorted(set(corners)))
+    thr = gmsh.model.mesh.field.add("Threshold")
+    for name, value in (("InField", dist), ("SizeMin", h_gap), ("SizeMax", h_max), ("DistMin", h_gap),
+                        ("DistMax", h_gap + (h_max - h_gap) / sizing.air_grading)):
+        gmsh.model.mesh.field.setNumber(thr, name, value)
+    return thr

@@ -187,7 +187,7 @@ BAD_CASES = [
     ("stop-below-start", edit(BASE, ('frequencies = [0, "100 kHz", "1 MHz"]',
                                      'start = "1 MHz"\nstop = "10 kHz"')), "sweep.stop", []),
     ("ampere-turns-unbalanced", edit(BASE, ('current = "2 A"', 'current = "3 A"')), "winding",
-     ["ampere-turns", 'boundary = "open"']),
+     ["ampere-turns", 'boundary = "core"', "[[gap]]"]),
     ("missing-sweep", drop_section(BASE, "[sweep]"), "sweep", ["[sweep]"]),
     ("missing-window", drop_section(BASE, "[window]"), "window", ["[window]"]),
     ("missing-required-quantity", edit(BASE, ('height = "6 mm"\n', "")), "window.height", ["height ="]),

@@ -7,6 +7,9 @@ Exit status: 0 done; 1 internal failure (a bug: please report it);
 from __future__ import annotations
 
 import argparse
+import cmath
+import json
+import math
 import os
 import sys
 import time
@@ -18,6 +21,9 @@ from geometry.errors import CaseError
 from geometry.layout import place
 from geometry.materials import material, skin_depth
 
+from geometry.units import quantity
+
+from .impedance import losses_from_document
 from .report import CAUTION, build_report, format_frequency
 from .writers import write_all
 
@@ -114,6 +120,39 @@ def command_check(args) -> int:
     return EXIT_OK
 
 
+def _current_argument(text: str) -> tuple[str, complex]:
+    """``NAME=VALUE[@PHASE]``, e.g. ``primary=1.5A`` or ``secondary=6A@180``."""
+    name, _, value = text.partition("=")
+    if not name or not value:
+        raise CaseError("--current", f"cannot read {text!r}", 'write NAME=VALUE[@PHASE], such as secondary="6 A@180"')
+    magnitude, _, phase = value.partition("@")
+    amps = quantity(magnitude.strip(), "current", f"--current {name}")
+    degrees = quantity(phase.strip(), "angle", f"--current {name}") if phase else 0.0
+    return name.strip(), amps * cmath.exp(1j * math.radians(degrees))
+
+
+def command_loss(args) -> int:
+    path = Path(args.results)
+    if path.is_dir():
+        path = path / "results.json"
+    try:
+        doc = json.loads(path.read_text(encoding="utf-8"))
+        doc["loss_matrix"], doc["frequencies_hz"], doc["windings"]
+    except (OSError, ValueError, KeyError, TypeError):
+        raise CaseError("", "not a racfield results.json with loss matrices",
+                        "give the results.json (or its folder) written by racfield run", str(path)) from None
+    currents = dict(_current_argument(text) for text in args.current)
+    try:
+        loss = losses_from_document(doc, currents)
+    except ValueError as error:
+        raise CaseError("--current", str(error), "give balanced winding currents", str(path)) from None
+    order = doc["loss_matrix"]["order"]
+    print(f"{'frequency':>12} " + " ".join(f"{n[:16] + ' (W)':>20}" for n in order) + f" {'total (W)':>12}")
+    for f, row in zip(doc["frequencies_hz"], loss):
+        print(f"{format_frequency(f):>12} " + " ".join(f"{p:>20.5g}" for p in row) + f" {row.sum():>12.5g}")
+    return EXIT_OK
+
+
 def parser() -> argparse.ArgumentParser:
     top = argparse.ArgumentParser(prog="racfield", description="AC winding resistance from a 2-D eddy-current field solution.")
     sub = top.add_subparsers(dest="command", required=True)
@@ -125,6 +164,11 @@ def parser() -> argparse.ArgumentParser:
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")
     check.set_defaults(handler=command_check)
+    loss = sub.add_parser("loss", help="winding losses at other currents, from a results.json without a new solve")
+    loss.add_argument("results", help="results.json, or the results folder")
+    loss.add_argument("--current", action="append", default=[], metavar="NAME=VALUE[@PHASE]",
+                      help='a winding current (A RMS, phase in degrees), e.g. --current "secondary=6 A@180"; repeat per winding')
+    loss.set_defaults(handler=command_loss)
     return top
 
 
@@ -134,9 +178,11 @@ def main(argv: list[str] | None = None) -> int:
         return args.handler(args)
     except CaseError as error:
         if not error.file:
-            error = error.in_file(args.case)
+            error = error.in_file(getattr(args, "case", None) or getattr(args, "results", ""))
         print(f"racfield: error: {error.line()}", file=sys.stderr)
         return EXIT_BAD_INPUT
+    except BrokenPipeError:  # output piped into a program that stopped reading
+        return EXIT_OK
     except KeyboardInterrupt:
         print("racfield: interrupted", file=sys.stderr)
         return 130

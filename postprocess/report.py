@@ -16,6 +16,8 @@ import numpy as np
 from fem.sweep import SweepResult
 from geometry.case import Case
 
+from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
+
 CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
            "creepage/clearance and safety isolation follow the applicable safety standards, "
            "local codes and licensed practice.")
@@ -101,6 +103,7 @@ def results_document(report: Report) -> dict:
              "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
             for c in sweep.conductors
         ],
+        **magnetic_document(report),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),
@@ -108,6 +111,38 @@ def results_document(report: Report) -> dict:
         "conventions": {"units": "SI", "currents": "RMS", "phasors": PHASOR_CONVENTION},
         "caution": CAUTION,
     }
+
+
+def _nested(array: np.ndarray) -> list:
+    return np.asarray(array, dtype=float).tolist()
+
+
+def magnetic_document(report: Report) -> dict:
+    """Impedance matrix, inductances, leakage and loss matrices for results.json.
+
+    In a closed ideal-core window the magnetizing inductance is infinite and
+    only ampere-turn-balanced currents exist: no impedance matrix or self
+    inductance is reported there, only the short-circuit (leakage) impedance.
+    """
+    case, sweep = report.case, report.sweep
+    names = sweep.winding_names
+    turns = sweep.connection.sum(axis=0)
+    z, l = winding_matrices(sweep, case.model.length)
+    closed = case.window.boundary == "ideal-core"
+    doc: dict = {}
+    if not closed:
+        doc["impedance"] = {"order": names, "r_ohm": _nested(z.real), "l_h": _nested(l)}
+        doc["inductance"] = {"self_l_h": {n: _nested(l[:, i, i]) for i, n in enumerate(names)}}
+        if case.window.boundary == "core":
+            doc["inductance"]["magnetizing_l_h"] = magnetizing(l, turns)
+            doc["inductance"]["magnetizing_referred_to"] = names[0]
+    if len(names) >= 2:
+        l_sc, r_sc = leakage(sweep.frequencies, z, l, turns, balanced=closed)
+        doc["leakage"] = {"referred_to": names[0], "l_h": l_sc, "r_ohm": r_sc}
+    q = winding_loss_matrices(sweep, case.model.length)
+    doc["loss_matrix"] = {"order": names, "re_w_per_a2": _nested(q.real), "im_w_per_a2": _nested(q.imag),
+                          "balanced_only": closed}
+    return doc
 
 
 def format_frequency(f: float) -> str:

@@ -6,10 +6,13 @@ from pathlib import Path
 
 import numpy as np
 from matplotlib import colormaps
+from matplotlib.collections import PolyCollection
 from matplotlib.patches import Rectangle
 from matplotlib.tri import Triangulation
 
 from ..plotting import FIELD_MAP, linear_subtriangles, new_figure, save
+from geometry.mesher import CORE
+
 from ..report import Report, format_frequency
 
 
@@ -35,7 +38,19 @@ def write(report: Report, directory: Path) -> list[Path]:
     if np.ptp(flux) > 0:
         ax.tricontour(everything, flux, levels=24, colors="#3b6ea8", linewidths=0.6, linestyles="solid", alpha=0.9)
     w_mm, h_mm = window.width * 1e3, window.height * 1e3
-    if window.boundary == "ideal-core":
+    core = report.case.core
+    if core is not None:
+        body = sub[region4 == CORE]
+        ax.add_collection(PolyCollection(np.stack([x_mm[body], y_mm[body]], axis=-1), facecolors="#b9b9b4",
+                                         edgecolors="none", zorder=-1))
+        left = -core.centre_leg_width / 2 * 1e3
+        right = (window.width + core.outer_leg_width) * 1e3
+        yoke = core.yoke_thickness * 1e3
+        pad = 0.05 * (right - left)
+        ax.set_xlim(left, right + pad)
+        ax.set_ylim(-yoke - pad, h_mm + yoke + pad)
+        ax.axvline(left, color="0.4", linewidth=0.8, linestyle="-.")
+    elif window.boundary == "ideal-core":
         wall = 0.06 * max(w_mm, h_mm)
         core = Rectangle((-wall, -wall), w_mm + 2 * wall, h_mm + 2 * wall, facecolor="#9a9a96",
                          edgecolor="none", zorder=-2)

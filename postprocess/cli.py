@@ -24,7 +24,7 @@ from geometry.materials import material, skin_depth
 from geometry.units import quantity
 
 from .impedance import losses_from_document
-from .report import CAUTION, build_report, format_frequency
+from .report import CAUTION, build_report, format_frequency, magnetic_document
 from .writers import write_all
 
 EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
@@ -59,6 +59,25 @@ def _summary_table(report) -> str:
     return "\n".join(lines)
 
 
+def _inductance_lines(report) -> str:
+    """Self, magnetizing and leakage inductance at the first and last frequency."""
+    doc = magnetic_document(report)
+    freqs = report.sweep.frequencies
+    ends = f"at {format_frequency(freqs[0])} / {format_frequency(freqs[-1])}"
+    lines = []
+    for name, values in doc.get("inductance", {}).get("self_l_h", {}).items():
+        lines.append(f"self inductance {name}: {values[0] * 1e6:.5g} / {values[-1] * 1e6:.5g} uH {ends}")
+    if "magnetizing_l_h" in doc.get("inductance", {}):
+        m = doc["inductance"]["magnetizing_l_h"]
+        lines.append(f"magnetizing inductance (referred to {doc['inductance']['magnetizing_referred_to']}): "
+                     f"{m[0] * 1e6:.5g} / {m[-1] * 1e6:.5g} uH {ends}")
+    if "leakage" in doc:
+        leak = doc["leakage"]
+        lines.append(f"leakage inductance (referred to {leak['referred_to']}, others shorted): "
+                     f"{leak['l_h'][0] * 1e6:.5g} / {leak['l_h'][-1] * 1e6:.5g} uH {ends}")
+    return "\n".join(lines)
+
+
 def command_run(args) -> int:
     case = load_case(args.case)
     out = Path(args.out) if args.out else Path(args.case).with_suffix("")
@@ -74,6 +93,7 @@ def command_run(args) -> int:
     report = build_report(case, sweep)
     written = write_all(report, out)
     print(_summary_table(report))
+    print(_inductance_lines(report))
     t = sweep.timings
     print(f"\nmesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "
           f"times: mesh {t['mesh_s']:.1f} s, assembly {t['assembly_s']:.1f} s, solve {t['solve_s']:.1f} s")

@@ -27,8 +27,8 @@ def write(report: Report, directory: Path) -> list[Path]:
     everything = Triangulation(x_mm, y_mm, sub)
     metal = Triangulation(x_mm, y_mm, sub[region4 >= 0])
 
-    aspect = window.height / window.width
-    figure = new_figure(6.5, min(max(3.0, 5.0 * aspect), 9.0))
+    figure = new_figure(6.5, 6.5)
+    figure.set_layout_engine("compressed")  # suits fixed-aspect axes
     ax = figure.add_subplot()
     ax.set_facecolor("#f4f4f2")
     j_mm2 = np.abs(snap.current_density) * 1e-6
@@ -64,6 +64,8 @@ def write(report: Report, directory: Path) -> list[Path]:
         ax.set_xlim(-pad, w_mm + pad)
         ax.set_ylim(-pad, h_mm + pad)
     ax.set_aspect("equal")
+    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+    figure.set_size_inches(6.5, min(max(3.0, 4.8 * (y1 - y0) / (x1 - x0) + 0.9), 9.5))
     ax.set_xlabel("x, from the inner wall (mm)")
     ax.set_ylabel("y, from the window bottom (mm)")
     ax.set_title(f"|J| and flux lines at {format_frequency(snap.frequency)}", fontsize=10)

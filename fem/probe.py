@@ -144,7 +144,7 @@ def field_strength_at(problem, potential: np.ndarray, points: np.ndarray,
                       core_permeability: float) -> tuple[np.ndarray, np.ndarray]:
     """Field strength (hx, hy) in A/m at ``points`` (2, n): B / mu, with
     mu = mu0 * ``core_permeability`` in core elements and mu0 elsewhere
-    (the value given to :class:`~fem.planar.PlanarProblem`).  NaN outside."""
+    (the value given to :class:`~fem.problem.WindowProblem`).  NaN outside."""
     element, ref = locate(problem, points)
     grad = _gradient(problem, potential, element, ref)
     region = np.where(element >= 0, problem.region[np.maximum(element, 0)], 0)

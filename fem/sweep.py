@@ -9,11 +9,11 @@ from typing import Callable
 import numpy as np
 
 from geometry.case import Case
-from geometry.layout import Conductor, place
+from geometry.layout import Conductor, dc_resistance, place
 from geometry.materials import material, skin_depth
 from geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
-from .planar import PlanarProblem
+from .problem import WindowProblem
 
 
 @dataclass
@@ -42,7 +42,8 @@ class SweepResult:
     and ``inductance_per_m`` (Nf, Nc, Nc) ohm/m and H/m; ``loss_matrix_per_m``
     (Nf, Nc, Nw, Nw) W/m per A^2 (loss of conductor k at winding currents i
     is Re(i^H Q i)); ``connection`` (Nc, Nw) turns of each winding in series;
-    ``rdc_per_m`` (Nc,) ohm/m from the true conductor areas; ``currents``
+    ``rdc_per_m`` (Nc,) ohm/m from the true conductor areas (axisymmetric: ohm
+    per ring from its true geometry; every ``_per_m`` value is then per turn); ``currents``
     (Nc,) A RMS phasors.
     """
 
@@ -77,7 +78,15 @@ def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
     delta = skin_depth(float(rho.min()), max(case.frequencies))
     sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
-                      sizing, case.mesh.far_radius_factor, case.core)
+                      sizing, case.mesh.far_radius_factor, case.core,
+                      axis_x=-case.window.inner_radius if case.model.axisymmetric else None)
+
+
+def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray) -> WindowProblem:
+    """The assembled problem of ``case`` on ``window_mesh`` (planar or axisymmetric)."""
+    return WindowProblem(window_mesh, 1.0 / resistivity,
+                         case.core.relative_permeability if case.core else 1.0,
+                         case.window.inner_radius if case.model.axisymmetric else None)
 
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None) -> SweepResult:
@@ -90,8 +99,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     timings["mesh_s"] = time.perf_counter() - start
 
     start = time.perf_counter()
-    problem = PlanarProblem(window_mesh, 1.0 / rho,
-                            case.core.relative_permeability if case.core else 1.0)
+    problem = problem_for(case, window_mesh, rho)
     timings["assembly_s"] = time.perf_counter() - start
 
     names = [w.name for w in case.windings]
@@ -123,7 +131,9 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         if progress:
             progress(i + 1, nf, f)
     timings["solve_s"] = time.perf_counter() - start
-    return SweepResult(freqs, conductors, rho, currents, rho / true_area, loss, impedance,
+    offset = case.window.inner_radius if case.model.axisymmetric else None
+    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
+    return SweepResult(freqs, conductors, rho, currents, rdc, loss, impedance,
                        problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
                        problem.unknowns, window_mesh.elements,
                        window_mesh.surface_size, timings, snapshot)

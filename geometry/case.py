@@ -21,7 +21,7 @@ from .errors import CaseError
 from .materials import MATERIALS, ALIASES
 from .units import EXAMPLES, quantity
 
-SYMMETRIES = ("planar",)
+SYMMETRIES = ("planar", "axisymmetric")
 BOUNDARIES = ("ideal-core", "open", "core")
 LEGS = ("centre", "outer")
 STACKINGS = ("across-width", "along-height")
@@ -33,8 +33,19 @@ MAX_FREQUENCIES = 1000
 @dataclass(frozen=True)
 class Model:
     symmetry: str = "planar"
-    length: float = 1.0          #: m, conductor length per turn (mean turn length)
+    length: float = 1.0          #: m, conductor length per turn (mean turn length); planar only
     temperature_c: float = 20.0  #: degC
+    length_given: bool = False   #: the case file set model.length
+
+    @property
+    def axisymmetric(self) -> bool:
+        return self.symmetry == "axisymmetric"
+
+    @property
+    def result_scale(self) -> float:
+        """Factor from the solver's values to whole turns: the turn length in m
+        for planar (per-metre solution), 1 for axisymmetric (per-turn solution)."""
+        return 1.0 if self.axisymmetric else self.length
 
 
 @dataclass(frozen=True)
@@ -47,6 +58,11 @@ class Window:
     margin_top: float = 0.0       #: m
     margin_bottom: float = 0.0    #: m
     stacking: str = "across-width"
+    inner_radius: float | None = None  #: m, axisymmetric: radius of the inner wall (x = 0)
+
+    def radius(self, x: float) -> float:
+        """Radius in m of window coordinate ``x`` (axisymmetric models)."""
+        return x + (self.inner_radius or 0.0)
 
 
 @dataclass(frozen=True)
@@ -136,6 +152,8 @@ class MeshOptions:
 
 @dataclass(frozen=True)
 class Case:
+    """A checked case.  ``notes``: remarks for the user that are not errors."""
+
     title: str
     model: Model
     frequencies: tuple[float, ...]  #: Hz, increasing; 0 gives the DC solution
@@ -146,6 +164,7 @@ class Case:
     mesh: MeshOptions = field(default_factory=MeshOptions)
     path: str = ""
     core: Core | None = None
+    notes: tuple[str, ...] = ()
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
@@ -233,18 +252,15 @@ class _Table:
 
 
 def _model(table: _Table) -> Model:
-    symmetry = table.raw("symmetry", "planar")
-    if symmetry == "axisymmetric":
-        raise CaseError(table.key("symmetry"), '"axisymmetric" is not available in this version',
-                        'use symmetry = "planar"')
     symmetry = table.text("symmetry", "planar", SYMMETRIES)
+    length_given = table.has("length")
     length = table.quantity("length", "length", 1.0, positive=True)
     temperature = table.quantity("temperature", "temperature", 20.0)
     if temperature < -200.0 or temperature > 400.0:
         raise CaseError(table.key("temperature"), f"{temperature:g} degC is outside -200..400 degC",
                         'give the winding temperature, such as "100 degC"')
     table.close()
-    return Model(symmetry, length, temperature)
+    return Model(symmetry, length, temperature, length_given)
 
 
 def _frequencies(table: _Table) -> tuple[float, ...]:
@@ -286,8 +302,14 @@ def _frequencies(table: _Table) -> tuple[float, ...]:
     return tuple(float(f) for f in freqs)
 
 
-def _window(table: _Table) -> Window:
+def _window(table: _Table, model: Model) -> Window:
     width = table.quantity("width", "length", required=True, positive=True)
+    inner_radius = None
+    if model.axisymmetric:
+        inner_radius = table.quantity("inner_radius", "length", required=True, positive=True)
+    elif table.has("inner_radius"):
+        raise CaseError(table.key("inner_radius"), "is used by axisymmetric models only",
+                        'remove it, or set model.symmetry = "axisymmetric"')
     height = table.quantity("height", "length", required=True, positive=True)
     boundary = table.text("boundary", "ideal-core", BOUNDARIES)
     stacking = table.text("stacking", "across-width", STACKINGS)
@@ -303,7 +325,7 @@ def _window(table: _Table) -> Window:
         raise CaseError(table.key("margins"), "top + bottom margins leave no height",
                         "make the margins smaller than the window height")
     return Window(width, height, boundary, sides["inner"], sides["outer"], sides["top"],
-                  sides["bottom"], stacking)
+                  sides["bottom"], stacking, inner_radius)
 
 
 def _conductor(table: _Table) -> ConductorSpec:
@@ -367,7 +389,7 @@ def _parse(doc: dict, path: str) -> Case:
         raise CaseError("title", "expected text", 'write title = "my transformer"')
     model = _model(_Table(top.raw("model", {}), "model"))
     frequencies = _frequencies(_Table(top.raw("sweep", None, required=True), "sweep"))
-    window = _window(_Table(top.raw("window", None, required=True), "window"))
+    window = _window(_Table(top.raw("window", None, required=True), "window"), model)
 
     windings: list[Winding] = []
     for t in _list_of_tables(top, "winding"):
@@ -410,7 +432,7 @@ def _parse(doc: dict, path: str) -> Case:
         spec = _conductor(_Table(shape_keys, t.path))
         placed.append(PlacedConductor(winding, spec, xy, t.path))
 
-    core = _core(top, window)
+    core = _core(top, window, model)
 
     mesh_table = _Table(top.raw("mesh", {}), "mesh")
     density = mesh_table.quantity("density", "number", 1.0, positive=True)
@@ -427,13 +449,13 @@ def _parse(doc: dict, path: str) -> Case:
                             "add a [[layer]] or [[conductor]] with this winding, or remove the winding")
 
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path, core)
+                MeshOptions(density, far), path, core, _notes(model))
     if window.boundary == "ideal-core":
         _check_balance(case)
     return case
 
 
-def _core(top: _Table, window: Window) -> Core | None:
+def _core(top: _Table, window: Window, model: Model) -> Core | None:
     """The [core] table and [[gap]] list; only with window.boundary = "core"."""
     gaps = _list_of_tables(top, "gap")
     if window.boundary != "core":
@@ -448,7 +470,14 @@ def _core(top: _Table, window: Window) -> Core | None:
     if not 1.0 <= mu_r <= 1e6:
         raise CaseError(table.key("relative_permeability"), f"{mu_r:g} is outside 1..1e6",
                         "give the core's relative permeability, such as 2000 for a power ferrite")
-    centre = table.quantity("centre_leg_width", "length", required=True, positive=True)
+    if model.axisymmetric:
+        # the centre post is the solid cylinder inside the window's inner wall
+        if table.has("centre_leg_width"):
+            raise CaseError(table.key("centre_leg_width"), "is not used in an axisymmetric model",
+                            "remove it: the centre post is the cylinder of radius window.inner_radius")
+        centre = 2.0 * window.inner_radius
+    else:
+        centre = table.quantity("centre_leg_width", "length", required=True, positive=True)
     outer = table.quantity("outer_leg_width", "length", required=True, positive=True)
     yoke = table.quantity("yoke_thickness", "length", required=True, positive=True)
     table.close()
@@ -472,6 +501,12 @@ def _core(top: _Table, window: Window) -> Core | None:
                                 "space the gaps apart or merge them into one")
         parsed.append(Gap(leg, length, at, t.path))
     return Core(mu_r, centre, outer, yoke, tuple(parsed))
+
+
+def _notes(model: Model) -> tuple[str, ...]:
+    if model.axisymmetric and model.length_given:
+        return ("model.length is not used in an axisymmetric model: every turn has its true length 2*pi*r",)
+    return ()
 
 
 def winding_turns(case: Case, name: str) -> int:

@@ -144,3 +144,22 @@ def _check_overlaps(conductors: list[Conductor]) -> None:
                 raise CaseError(second.key, f"{second.winding} turn {second.turn} overlaps "
                                 f"{first.winding} turn {first.turn} ({first.key})",
                                 "move one of them or make the conductors smaller")
+
+
+def dc_resistance(conductor: Conductor, resistivity: float, radius_offset: float | None = None) -> float:
+    """DC resistance of one turn from its true geometry.
+
+    Planar (``radius_offset`` None): rho / A in ohm per metre of length.
+    Axisymmetric (radius r = x + radius_offset): the whole ring in ohm, from
+    1/R = (1/rho) int dA / (2 pi r) (current density ~ 1/r at DC): a
+    rectangle r1..r2 of height h gives R = 2 pi rho / (h ln(r2/r1)); a round
+    wire of radius a at radius R0 gives R = rho / (R0 - sqrt(R0^2 - a^2)).
+    """
+    if radius_offset is None:
+        return resistivity / conductor.area
+    r = conductor.x + radius_offset
+    if conductor.shape == "round":
+        a = conductor.radius
+        return resistivity / (r - math.sqrt(r * r - a * a))
+    r1, r2 = r - conductor.width / 2, r + conductor.width / 2
+    return 2 * math.pi * resistivity / (conductor.height * math.log(r2 / r1))

@@ -93,10 +93,22 @@ def _core_body(occ, core: Core, width: float, height: float) -> list[tuple[int, 
     return body
 
 
+def _half_disk(occ, centre: tuple[float, float], radius: float) -> int:
+    """The half of a disk on the side x >= centre x."""
+    disk = occ.addDisk(centre[0], centre[1], 0.0, radius, radius)
+    left = occ.addRectangle(centre[0] - 2 * radius, centre[1] - 2 * radius, 0.0, 2 * radius, 4 * radius)
+    (dimtag,), _ = occ.cut([(2, disk)], [(2, left)])
+    return dimtag[1]
+
+
 def build_mesh(conductors: list[Conductor], width: float, height: float, boundary: str,
-               sizing: MeshSizing, far_radius_factor: float = 5.0, core: Core | None = None) -> WindowMesh:
+               sizing: MeshSizing, far_radius_factor: float = 5.0, core: Core | None = None,
+               axis_x: float | None = None) -> WindowMesh:
     """Mesh the window (``boundary = "ideal-core"``: the window rectangle is the
-    domain) or the air around the conductors out to a far circle (``"open"``)."""
+    domain), the air around the conductors out to a far circle (``"open"``), or
+    the half E-core body with air out to a far arc (``"core"``).  ``axis_x``:
+    an open domain is cut at this x (the axis of an axisymmetric model, where
+    A = 0) and becomes a half disk."""
     gmsh.initialize(["-noenv"], readConfigFiles=False, interruptible=False)
     try:
         gmsh.option.setNumber("General.Terminal", 0)
@@ -119,11 +131,12 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
             box_h = height + 2 * core.yoke_thickness
             far_centre = (symmetry_x, height / 2)
             far_radius = far_radius_factor * math.hypot(box_w, box_h / 2)
-            disk = occ.addDisk(far_centre[0], far_centre[1], 0.0, far_radius, far_radius)
-            left = occ.addRectangle(symmetry_x - 2 * far_radius, height / 2 - 2 * far_radius, 0.0,
-                                    2 * far_radius, 4 * far_radius)
-            (domain_dimtag,), _ = occ.cut([(2, disk)], [(2, left)])
-            domain = domain_dimtag[1]
+            domain = _half_disk(occ, far_centre, far_radius)
+        elif boundary == "open" and axis_x is not None:
+            symmetry_x = axis_x
+            far_centre = (axis_x, height / 2)
+            far_radius = far_radius_factor * math.hypot(width - axis_x, height / 2)
+            domain = _half_disk(occ, far_centre, far_radius)
         elif boundary == "open":
             far_centre = (width / 2, height / 2)
             far_radius = far_radius_factor * 0.5 * math.hypot(width, height)

@@ -18,7 +18,7 @@ from pathlib import Path
 from fem.sweep import conductor_resistivities, run_sweep
 from geometry.case import Case, load_case, winding_turns
 from geometry.errors import CaseError
-from geometry.layout import place
+from geometry.layout import dc_resistance, place
 from geometry.materials import material, skin_depth
 
 from geometry.units import quantity
@@ -78,8 +78,16 @@ def _inductance_lines(report) -> str:
     return "\n".join(lines)
 
 
+def _load(path: str) -> Case:
+    """The case, with its notes (remarks that are not errors) on stderr."""
+    case = load_case(path)
+    for note in case.notes:
+        print(f"racfield: note: {note}", file=sys.stderr)
+    return case
+
+
 def command_run(args) -> int:
-    case = load_case(args.case)
+    case = _load(args.case)
     out = Path(args.out) if args.out else Path(args.case).with_suffix("")
     if out.exists() and not out.is_dir():
         raise CaseError("--out", f"{out} exists and is not a folder", "name a folder for the results", args.case)
@@ -108,7 +116,9 @@ def _check_text(case: Case) -> str:
     win = case.window
     lines = [f"case: {case.title}",
              f"window: {win.width * 1e3:.4g} mm x {win.height * 1e3:.4g} mm, {win.boundary}, "
-             f"layers stacked {win.stacking}; {case.model.symmetry}, length {case.model.length * 1e3:.4g} mm, "
+             f"layers stacked {win.stacking}; {case.model.symmetry}"
+             + (f", inner wall at r = {win.inner_radius * 1e3:.4g} mm, " if case.model.axisymmetric
+                else f", length {case.model.length * 1e3:.4g} mm, ") +
              f"{case.model.temperature_c:g} degC"]
     copper = sum(c.area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
@@ -116,7 +126,8 @@ def _check_text(case: Case) -> str:
     for w in case.windings:
         idx = [c.index for c in conductors if c.winding == w.name]
         layers = sum(l.repeat for l in case.layers if l.winding == w.name)
-        rdc = sum(rho[i] / conductors[i].area for i in idx) * case.model.length
+        offset = win.inner_radius if case.model.axisymmetric else None
+        rdc = sum(dc_resistance(conductors[i], rho[i], offset) for i in idx) * case.model.result_scale
         lines.append(f"{w.name:<14} {winding_turns(case, w.name):>5} {layers:>6} {w.material:<10} "
                      f"{w.current:>8.4g} A {rdc * 1e3:>9.5g} mOhm")
     lines.append("skin depth at the case temperature, and the thickest conductor of each winding over it:")
@@ -134,7 +145,7 @@ def _check_text(case: Case) -> str:
 
 
 def command_check(args) -> int:
-    case = load_case(args.case)
+    case = _load(args.case)
     print(_check_text(case))
     print("case is valid")
     return EXIT_OK

@@ -54,12 +54,12 @@ class Report:
 
     def conductor_loss_w(self) -> np.ndarray:
         """(Nf, Nc) loss of every conductor in W (whole turn length)."""
-        return self.sweep.loss_per_m * self.case.model.length
+        return self.sweep.loss_per_m * self.case.model.result_scale
 
 
 def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
     """Aggregate conductors into windings (turns in series)."""
-    length = case.model.length
+    length = case.model.result_scale
     results = []
     for w in case.windings:
         idx = [c.index for c in sweep.conductors if c.winding == w.name]
@@ -88,7 +88,7 @@ def results_document(report: Report) -> dict:
         "title": case.title,
         "symmetry": case.model.symmetry,
         "temperature_c": case.model.temperature_c,
-        "length_m": case.model.length,
+        "length_m": None if case.model.axisymmetric else case.model.length,
         "frequencies_hz": [float(f) for f in sweep.frequencies],
         "windings": {
             w.name: {"turns": w.turns, "current_a_rms": w.current_a_rms, "phase_deg": w.phase_deg,
@@ -99,7 +99,8 @@ def results_document(report: Report) -> dict:
         "total_loss_w": report.total_loss_w,
         "conductors": [
             {"winding": c.winding, "turn": c.turn, "shape": c.shape, "x_m": c.x, "y_m": c.y,
-             "area_m2": c.area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.length),
+             **({"r_m": case.window.radius(c.x)} if case.model.axisymmetric else {}),
+             "area_m2": c.area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.result_scale),
              "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
             for c in sweep.conductors
         ],
@@ -127,7 +128,7 @@ def magnetic_document(report: Report) -> dict:
     case, sweep = report.case, report.sweep
     names = sweep.winding_names
     turns = sweep.connection.sum(axis=0)
-    z, l = winding_matrices(sweep, case.model.length)
+    z, l = winding_matrices(sweep, case.model.result_scale)
     closed = case.window.boundary == "ideal-core"
     doc: dict = {}
     if not closed:
@@ -139,7 +140,7 @@ def magnetic_document(report: Report) -> dict:
     if len(names) >= 2:
         l_sc, r_sc = leakage(sweep.frequencies, z, l, turns, balanced=closed)
         doc["leakage"] = {"referred_to": names[0], "l_h": l_sc, "r_ohm": r_sc}
-    q = winding_loss_matrices(sweep, case.model.length)
+    q = winding_loss_matrices(sweep, case.model.result_scale)
     doc["loss_matrix"] = {"order": names, "re_w_per_a2": _nested(q.real), "im_w_per_a2": _nested(q.imag),
                           "balanced_only": closed}
     return doc

@@ -211,8 +211,10 @@ BAD_CASES = [
     ("turns-fraction", edit(BASE, ("turns = 10", "turns = 2.5")), "layer[1].turns", ["whole number"]),
     ("turns-text", edit(BASE, ("turns = 10", 'turns = "10"')), "layer[1].turns", ["whole number"]),
     ("repeat-zero", edit(BASE, ("repeat = 5", "repeat = 0")), "layer[2].repeat", ["at least 1"]),
-    ("symmetry-axisymmetric", edit(BASE, ('symmetry = "planar"', 'symmetry = "axisymmetric"')),
-     "model.symmetry", ["not available", '"planar"']),
+    ("axisymmetric-without-inner-radius", edit(BASE, ('symmetry = "planar"', 'symmetry = "axisymmetric"')),
+     "window.inner_radius", ["missing"]),
+    ("inner-radius-in-planar", edit(BASE, ('width = "4 mm"', 'width = "4 mm"\ninner_radius = "3 mm"')),
+     "window.inner_radius", ["axisymmetric"]),
     ("symmetry-unknown", edit(BASE, ('symmetry = "planar"', 'symmetry = "planer"')),
      "model.symmetry", ['did you mean "planar"?']),
     ("temperature-out-of-range", edit(BASE, ('temperature = "20 degC"', 'temperature = "900 degC"')),
@@ -225,7 +227,7 @@ BAD_CASES = [
 
 #: entries also run through a real ``racfield check`` subprocess
 SUBPROCESS_IDS = ("toml-syntax", "unknown-key-misspelt-required", "wrong-unit", "turns-do-not-fit",
-                  "explicit-overlap", "symmetry-axisymmetric")
+                  "explicit-overlap", "axisymmetric-without-inner-radius")
 
 
 def racfield_command() -> list[str]:

@@ -9,7 +9,7 @@ import json
 import numpy as np
 import pytest
 
-from fem.planar import PlanarProblem
+from fem.problem import WindowProblem
 from fem.sweep import conductor_resistivities, mesh_case
 from geometry.case import parse_case
 from geometry.layout import place
@@ -30,7 +30,7 @@ TWO_WINDINGS = {
 def problem():
     case = parse_case(TWO_WINDINGS)
     conductors = place(case)
-    problem = PlanarProblem(mesh_case(case, conductors), 1.0 / conductor_resistivities(case, conductors))
+    problem = WindowProblem(mesh_case(case, conductors), 1.0 / conductor_resistivities(case, conductors))
     connection = np.zeros((len(conductors), 2))
     for c in conductors:
         connection[c.index, 0 if c.winding == "p" else 1] = 1.0

@@ -33,7 +33,7 @@ import pytest
 from skfem import Functional
 from skfem.helpers import dot
 
-from fem.planar import PlanarProblem
+from fem.problem import WindowProblem
 from fem.probe import field_strength_at, flux_density_at, locate
 from fem.sweep import conductor_resistivities, mesh_case, run_sweep
 from geometry.case import parse_case
@@ -104,7 +104,7 @@ def _solved(gap_key: tuple, frequency: float, top_frequency: float):
     returns (case, conductors, problem, solution, connection)."""
     case = parse_case(core_doc(_gaps(gap_key), sorted({frequency, top_frequency})))
     conductors = place(case)
-    problem = PlanarProblem(mesh_case(case, conductors), 1.0 / conductor_resistivities(case, conductors),
+    problem = WindowProblem(mesh_case(case, conductors), 1.0 / conductor_resistivities(case, conductors),
                             case.core.relative_permeability)
     connection = np.ones((len(conductors), 1))
     solution = problem.solve_windings(frequency, connection, np.array([CURRENT + 0j]), keep_field=True)
@@ -208,7 +208,7 @@ def test_probe_on_curved_elements():
     wire = Conductor(index=0, winding="wire", turn=1, shape="round", x=1e-3, y=1e-3,
                      width=2 * radius, height=2 * radius, key="conductor[1]")
     mesh = build_mesh([wire], 2e-3, 2e-3, "open", MeshSizing(skin_depth=math.inf), far_radius_factor=3.0)
-    problem = PlanarProblem(mesh, np.array([5.8e7]))
+    problem = WindowProblem(mesh, np.array([5.8e7]))
     theta = np.linspace(0.0, 2 * math.pi, 2000, endpoint=False) + 0.0123
     inside = np.array([1e-3 + radius * (1 - 1e-4) * np.cos(theta), 1e-3 + radius * (1 - 1e-4) * np.sin(theta)])
     outside = np.array([1e-3 + radius * (1 + 1e-4) * np.cos(theta), 1e-3 + radius * (1 + 1e-4) * np.sin(theta)])
@@ -349,7 +349,7 @@ def _arc_density(w):
     return w["a_re"] ** 2 + w["a_im"] ** 2
 
 
-def magnetic_energy(problem: PlanarProblem, potential: np.ndarray) -> tuple[float, float]:
+def magnetic_energy(problem: WindowProblem, potential: np.ndarray) -> tuple[float, float]:
     """Time-averaged magnetic energy per metre (J/m) of an RMS phasor field,
     1/2 int nu |B|^2 over the model, and the energy outside the far arc,
     1/2 nu0 / R int |A|^2 ds (exact for the dipole field outside: with

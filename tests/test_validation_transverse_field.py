@@ -16,7 +16,7 @@ so J = -j omega sigma A and the loss per metre (RMS phasors, so no 1/2) is
     P = int |J|^2 / sigma dS = sigma omega^2 |C|^2 pi int_0^a |J1(k r)|^2 r dr.
 
 racfield is driven here below the case level: geometry.mesher.build_mesh and
-fem.planar.PlanarProblem.solve(..., b_applied=(Bx, By)).
+fem.problem.WindowProblem.solve(..., b_applied=(Bx, By)).
 """
 
 from __future__ import annotations
@@ -28,7 +28,7 @@ import pytest
 from scipy.integrate import quad
 from scipy.special import jv
 
-from fem.planar import PlanarProblem
+from fem.problem import WindowProblem
 from geometry.layout import Conductor
 from geometry.mesher import MeshSizing, build_mesh
 
@@ -87,7 +87,7 @@ def problem():
     delta_min = RADIUS / max(RATIOS)
     window_mesh = build_mesh([wire], 2 * CENTRE, 2 * CENTRE, "open", MeshSizing(skin_depth=delta_min),
                              far_radius_factor=5.0)
-    return PlanarProblem(window_mesh, np.array([SIGMA]))
+    return WindowProblem(window_mesh, np.array([SIGMA]))
 
 
 def _loss(problem, ratio: float, b_applied) -> float:

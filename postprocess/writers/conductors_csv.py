@@ -12,7 +12,7 @@ from .atomic import replace_text
 
 def write(report: Report, directory: Path) -> list[Path]:
     loss = report.conductor_loss_w()
-    length = report.case.model.length
+    length = report.case.model.result_scale
     buffer = io.StringIO()
     out = csv.writer(buffer, lineterminator="\n")
     out.writerow(["frequency_hz", "winding", "turn", "x_m", "y_m", "rdc_ohm", "loss_w", "loss_over_dc_loss"])

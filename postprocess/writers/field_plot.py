@@ -21,7 +21,10 @@ def write(report: Report, directory: Path) -> list[Path]:
     if snap is None:
         return []
     window = report.case.window
-    x_mm, y_mm = snap.points[0] * 1e3, snap.points[1] * 1e3
+    # axisymmetric models are drawn at their true radius r = x + r0
+    shift = window.inner_radius if report.case.model.axisymmetric else 0.0
+    x_mm, y_mm = (snap.points[0] + shift) * 1e3, snap.points[1] * 1e3
+    s_mm = shift * 1e3
     region4 = np.tile(snap.region, 4)
     sub = linear_subtriangles(snap.triangles)
     everything = Triangulation(x_mm, y_mm, sub)
@@ -43,8 +46,8 @@ def write(report: Report, directory: Path) -> list[Path]:
         body = sub[region4 == CORE]
         ax.add_collection(PolyCollection(np.stack([x_mm[body], y_mm[body]], axis=-1), facecolors="#b9b9b4",
                                          edgecolors="none", zorder=-1))
-        left = -core.centre_leg_width / 2 * 1e3
-        right = (window.width + core.outer_leg_width) * 1e3
+        left = -core.centre_leg_width / 2 * 1e3 + s_mm
+        right = (window.width + core.outer_leg_width) * 1e3 + s_mm
         yoke = core.yoke_thickness * 1e3
         pad = 0.05 * (right - left)
         ax.set_xlim(left, right + pad)
@@ -52,22 +55,26 @@ def write(report: Report, directory: Path) -> list[Path]:
         ax.axvline(left, color="0.4", linewidth=0.8, linestyle="-.")
     elif window.boundary == "ideal-core":
         wall = 0.06 * max(w_mm, h_mm)
-        core = Rectangle((-wall, -wall), w_mm + 2 * wall, h_mm + 2 * wall, facecolor="#9a9a96",
+        core = Rectangle((s_mm - wall, -wall), w_mm + 2 * wall, h_mm + 2 * wall, facecolor="#9a9a96",
                          edgecolor="none", zorder=-2)
         ax.add_patch(core)
-        ax.add_patch(Rectangle((0, 0), w_mm, h_mm, facecolor="#f4f4f2", edgecolor="none", zorder=-1))
-        ax.set_xlim(-wall, w_mm + wall)
+        ax.add_patch(Rectangle((s_mm, 0), w_mm, h_mm, facecolor="#f4f4f2", edgecolor="none", zorder=-1))
+        ax.set_xlim(s_mm - wall, s_mm + w_mm + wall)
         ax.set_ylim(-wall, h_mm + wall)
     else:
-        ax.add_patch(Rectangle((0, 0), w_mm, h_mm, fill=False, edgecolor="0.5", linestyle=":", linewidth=0.8))
+        ax.add_patch(Rectangle((s_mm, 0), w_mm, h_mm, fill=False, edgecolor="0.5", linestyle=":", linewidth=0.8))
         pad = 0.15 * max(w_mm, h_mm)
-        ax.set_xlim(-pad, w_mm + pad)
+        ax.set_xlim(0.0 if shift else -pad, s_mm + w_mm + pad)
         ax.set_ylim(-pad, h_mm + pad)
     ax.set_aspect("equal")
     (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
     figure.set_size_inches(6.5, min(max(3.0, 4.8 * (y1 - y0) / (x1 - x0) + 0.9), 9.5))
-    ax.set_xlabel("x, from the inner wall (mm)")
-    ax.set_ylabel("y, from the window bottom (mm)")
+    if report.case.model.axisymmetric:
+        ax.set_xlabel("r, radius from the axis (mm)")
+        ax.set_ylabel("z, height above the window bottom (mm)")
+    else:
+        ax.set_xlabel("x, from the inner wall (mm)")
+        ax.set_ylabel("y, from the window bottom (mm)")
     ax.set_title(f"|J| and flux lines at {format_frequency(snap.frequency)}", fontsize=10)
     bar = figure.colorbar(mappable, ax=ax, shrink=0.85)
     bar.set_label("|J| (A/mm\u00b2, RMS)")

@@ -1,7 +1,15 @@
-"""Planar (x-y) eddy-current problem: assembly once, then one solve per frequency.
+"""The window's eddy-current problem: assembly once, then one solve per frequency.
 
-Per-metre quantities: voltages in V/m, impedances in ohm/m, losses in W/m.
-Currents are RMS phasors (A), so ``|J|^2 / sigma`` integrates to average loss.
+Planar (x-y): per-metre quantities, voltages in V/m, impedances in ohm/m,
+losses in W/m.  Axisymmetric (r = x + r0, z = y): per-turn quantities, voltages
+in V, impedances in ohm, losses in W.  Both share one discrete structure
+
+    (K + j w M) a - B u = F,    -j w B^T a + G u = I
+
+with B[:, k] = int_k sigma phi dx dy in both cases, and G = diag(sigma S_k)
+(planar) or diag(sigma int_k dr dz / (2 pi r)) (axisymmetric, the ring's DC
+conductance).  Currents are RMS phasors (A), so |J|^2 / sigma integrates to
+average loss.  The ``_per_m`` names below read "per turn" in an axisymmetric model.
 """
 
 from __future__ import annotations
@@ -15,7 +23,8 @@ from skfem import Basis, ElementTriP2, FacetBasis, Functional, MeshTri2
 from geometry.materials import MU0
 from geometry.mesher import CORE, WindowMesh
 
-from .forms import applied_field_load, conductivity_mass, reluctivity_stiffness, robin_mass
+from .forms import (applied_field_load, axisymmetric_conductivity_mass, axisymmetric_robin_mass,
+                    axisymmetric_stiffness, conductivity_mass, reluctivity_stiffness, robin_mass)
 from .harmonic import Response, respond
 
 
@@ -39,8 +48,10 @@ class FrequencySolution:
 
 @Functional
 def _ohmic_cross_density(w):
-    """sigma conj(e_i) e_j integrated over each element (W/m), e = u - j w A;
-    real and imaginary parts returned as the two halves of a complex number."""
+    """sigma conj(e_i) e_j integrated over each element (W/m or W), e = E/sigma
+    = (voltage weight) u - j w A, times the volume weight; the voltage weight
+    is 1/(2 pi r) and the volume weight 2 pi r in axisymmetric models (1 in
+    planar ones); already folded into u_* and sigma by the caller."""
     re_i, im_i = w.u_re_i + w.omega * w.a_im_i, w.u_im_i - w.omega * w.a_re_i
     re_j, im_j = w.u_re_j + w.omega * w.a_im_j, w.u_im_j - w.omega * w.a_re_j
     return w.sigma * (re_i * re_j + im_i * im_j) + 1j * w.sigma * (re_i * im_j - im_i * re_j)
@@ -68,7 +79,7 @@ class WindingSolution:
     potential: np.ndarray | None = None
 
 
-class PlanarProblem:
+class WindowProblem:
     """Assembled matrices of one meshed window.
 
     ``conductivity`` gives sigma (S/m) for every conductor, in mesh region
@@ -78,8 +89,12 @@ class PlanarProblem:
     """
 
     def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray,
-                 core_permeability: float = 1.0) -> None:
+                 core_permeability: float = 1.0, radius_offset: float | None = None) -> None:
+        """``radius_offset``: None for planar; for axisymmetric the radius
+        r0 (m) of x = 0, so that r = x + r0."""
         self.window_mesh = window_mesh
+        self.radius_offset = radius_offset
+        axisymmetric = radius_offset is not None
         self.mesh = MeshTri2(window_mesh.points, window_mesh.triangles)
         self.basis = Basis(self.mesh, ElementTriP2())
         self.sigma_k = np.asarray(conductivity, dtype=float)
@@ -91,8 +106,19 @@ class PlanarProblem:
         self.region = region
 
         nu_e = np.where(region == CORE, 1.0 / (MU0 * core_permeability), 1.0 / MU0)
-        stiffness = reluctivity_stiffness.assemble(self.basis, nu=np.repeat(nu_e[:, None], nqp, axis=1))
-        mass = conductivity_mass.assemble(self.basis, sigma=self.sigma_qp)
+        nu_qp = np.repeat(nu_e[:, None], nqp, axis=1)
+        if axisymmetric:
+            r_qp = np.asarray(self.basis.global_coordinates())[0] + radius_offset
+            stiffness = axisymmetric_stiffness.assemble(self.basis, nu=nu_qp, r0=radius_offset)
+            mass = axisymmetric_conductivity_mass.assemble(self.basis, sigma=self.sigma_qp, r0=radius_offset)
+            # E = V / (2 pi r) - j w A and dV = 2 pi r dr dz
+            self.voltage_weight = 1.0 / (2.0 * np.pi * r_qp)
+            self.volume_weight = 2.0 * np.pi * r_qp
+        else:
+            stiffness = reluctivity_stiffness.assemble(self.basis, nu=nu_qp)
+            mass = conductivity_mass.assemble(self.basis, sigma=self.sigma_qp)
+            self.voltage_weight = np.ones_like(self.sigma_qp)
+            self.volume_weight = np.ones_like(self.sigma_qp)
         self.far_basis = None
         if window_mesh.far_radius is not None:
             xs = window_mesh.symmetry_x
@@ -102,7 +128,9 @@ class PlanarProblem:
                 on_plane = np.abs(self.mesh.p[0, self.mesh.facets[:, arc]] - xs).max(axis=0) < 1e-9 * window_mesh.far_radius
                 arc = arc[~on_plane]
             self.far_basis = FacetBasis(self.mesh, ElementTriP2(), facets=arc)
-            stiffness = stiffness + robin_mass.assemble(self.far_basis) / (MU0 * window_mesh.far_radius)
+            robin = (axisymmetric_robin_mass.assemble(self.far_basis, r0=radius_offset) if axisymmetric
+                     else robin_mass.assemble(self.far_basis))
+            stiffness = stiffness + robin / (MU0 * window_mesh.far_radius)
             fixed = (self.basis.get_dofs(lambda x: np.abs(x[0] - xs) < 1e-9 * window_mesh.far_radius).all()
                      if xs is not None else np.array([], dtype=int))
             free = np.setdiff1d(np.arange(self.basis.N), fixed)
@@ -123,7 +151,10 @@ class PlanarProblem:
                                  shape=(self.basis.N, self.conductor_count)).tocsr()
         self.areas = np.bincount(region[in_conductor], weights=self.basis.dx.sum(axis=1)[in_conductor],
                                  minlength=self.conductor_count)
-        self.conductance = self.sigma_k * self.areas
+        # DC conductance: sigma * int_k (voltage weight) dx dy
+        weighted = (self.voltage_weight * self.basis.dx).sum(axis=1)
+        self.conductance = self.sigma_k * np.bincount(region[in_conductor], weights=weighted[in_conductor],
+                                                      minlength=self.conductor_count)
         self.stiffness = stiffness[free][:, free].tocsc()
         self.mass = mass[free][:, free].tocsc()
         self.coupling = coupling[free]
@@ -134,8 +165,8 @@ class PlanarProblem:
 
     def applied_field_rhs(self, b_applied: tuple[complex, complex]) -> np.ndarray:
         """Load vector for a uniform applied flux density (Bx, By) in T (RMS phasors)."""
-        if self.far_basis is None:
-            raise ValueError("an applied field needs an open boundary")
+        if self.far_basis is None or self.radius_offset is not None:
+            raise ValueError("an applied field needs a planar open boundary")
         xc, yc = self.window_mesh.far_centre
         radius = self.window_mesh.far_radius
         bx, by = b_applied
@@ -181,7 +212,7 @@ class PlanarProblem:
         fields = []
         for i in range(count):
             u_e = np.where(mask, voltages[np.maximum(self.region, 0), i], 0.0)
-            u_qp = np.repeat(u_e[:, None], nqp, axis=1)
+            u_qp = np.repeat(u_e[:, None], nqp, axis=1) * self.voltage_weight
             fields.append((u_qp.real, u_qp.imag, self.basis.interpolate(potentials[:, i].real),
                            self.basis.interpolate(potentials[:, i].imag)))
         out = np.zeros((self.conductor_count, count, count), dtype=complex)
@@ -189,7 +220,7 @@ class PlanarProblem:
             for j in range(i, count):
                 fi, fj = fields[i], fields[j]
                 per_element = _ohmic_cross_density.elemental(
-                    self.basis, sigma=self.sigma_qp, omega=omega,
+                    self.basis, sigma=self.sigma_qp * self.volume_weight, omega=omega,
                     u_re_i=fi[0], u_im_i=fi[1], a_re_i=fi[2], a_im_i=fi[3],
                     u_re_j=fj[0], u_im_j=fj[1], a_re_j=fj[2], a_im_j=fj[3])
                 k = self.region[mask]
@@ -229,5 +260,8 @@ class PlanarProblem:
         mask = self.region >= 0
         dofs = self.basis.element_dofs[:, mask]
         k = self.region[mask]
-        j[dofs] = self.sigma_k[k] * (voltages[k] - 1j * omega * potential[dofs])
+        weight = 1.0
+        if self.radius_offset is not None:
+            weight = 1.0 / (2.0 * np.pi * (self.basis.doflocs[0, dofs] + self.radius_offset))
+        j[dofs] = self.sigma_k[k] * (voltages[k] * weight - 1j * omega * potential[dofs])
         return j

@@ -43,7 +43,7 @@ def test_every_case_is_covered(results):
 
 
 NAMES = ["demo_transformer", "pcb_planar_transformer", "air_core_choke", "gapped_inductor",
-         "gapped_inductor_split_gap"]
+         "gapped_inductor_split_gap", "pot_core_axisymmetric", "pot_core_planar"]
 
 
 @pytest.mark.parametrize("name", NAMES)
@@ -149,3 +149,24 @@ def test_split_gap_lowers_the_fringing_loss(results):
     single = results["gapped_inductor"][0]["windings"]["choke"]["loss_w"]
     split = results["gapped_inductor_split_gap"][0]["windings"]["choke"]["loss_w"]
     assert all(b < a for a, b in zip(single, split))
+
+
+def test_pot_core_dc_resistance_planar_and_axisymmetric(results):
+    axi, _ = results["pot_core_axisymmetric"]
+    planar, _ = results["pot_core_planar"]
+    assert axi["symmetry"] == "axisymmetric" and axi["length_m"] is None
+    rho = _rho(80.0)
+    for name, a in (("primary", 0.175e-3), ("secondary", 0.355e-3)):
+        # each turn is a ring: R = rho / (R0 - sqrt(R0^2 - a^2)) (integral of
+        # 1/(2 pi r) over the wire's disk; exact at DC)
+        rings = sum(rho / (c["r_m"] - math.sqrt(c["r_m"] ** 2 - a * a))
+                    for c in axi["conductors"] if c["winding"] == name)
+        assert axi["windings"][name]["rdc_ohm"] == pytest.approx(rings, rel=5e-4)
+        # planar: rho * l * N / A with the one mean turn length of the case (IEC 60028)
+        turns = planar["windings"][name]["turns"]
+        assert planar["windings"][name]["rdc_ohm"] == pytest.approx(rho * 0.0311 * turns / (math.pi * a * a), rel=5e-4)
+    # the leakage inductance falls with frequency as the field leaves the
+    # conductors (Dowell 1966, one-dimensional model)
+    for doc in (axi, planar):
+        leak = doc["leakage"]["l_h"]
+        assert all(b < a for a, b in zip(leak, leak[1:]))

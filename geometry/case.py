@@ -12,7 +12,7 @@ import cmath
 import difflib
 import math
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -28,6 +28,7 @@ STACKINGS = ("across-width", "along-height")
 SHAPES = ("round", "rectangular", "foil")
 ALIGNS = ("centre", "start", "end", "spread")
 MAX_FREQUENCIES = 1000
+BASE_VARIANT = "base"  #: name of the case's own arrangement when it also lists variants
 
 
 @dataclass(frozen=True)
@@ -151,6 +152,16 @@ class MeshOptions:
 
 
 @dataclass(frozen=True)
+class Variant:
+    """An arrangement sharing everything else with its case: layers and/or
+    explicitly placed conductors that replace the case's own (None: keep them)."""
+
+    name: str
+    layers: tuple[Layer, ...] | None = None
+    conductors: tuple[PlacedConductor, ...] | None = None
+
+
+@dataclass(frozen=True)
 class Case:
     """A checked case.  ``notes``: remarks for the user that are not errors."""
 
@@ -165,6 +176,10 @@ class Case:
     path: str = ""
     core: Core | None = None
     notes: tuple[str, ...] = ()
+    variants: tuple["Variant", ...] = ()
+    compare_frequency: float | None = None  #: Hz, where variants' losses are compared
+    variant: str | None = None              #: name of this arrangement, for a variant case
+    variant_index: int = 0                  #: 1-based position in [[variant]]; 0 for the base
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
@@ -369,9 +384,10 @@ def _winding_ref(table: _Table, names: list[str]) -> str:
 
 def _list_of_tables(doc: _Table, name: str) -> list[_Table]:
     items = doc.raw(name, [])
+    key = doc.key(name)
     if not isinstance(items, list):
-        raise CaseError(name, "expected a list of tables", f"write each one as [[{name}]]")
-    return [_Table(item, f"{name}[{i + 1}]") for i, item in enumerate(items)]
+        raise CaseError(key, "expected a list of tables", f"write each one as [[{key}]]")
+    return [_Table(item, f"{key}[{i + 1}]") for i, item in enumerate(items)]
 
 
 def parse_case(doc: dict, path: str = "") -> Case:
@@ -408,29 +424,10 @@ def _parse(doc: dict, path: str) -> Case:
         raise CaseError("winding", "no windings", 'add a [[winding]] table with name = "primary"')
     names = [w.name for w in windings]
 
-    layers: list[Layer] = []
-    for t in _list_of_tables(top, "layer"):
-        winding = _winding_ref(t, names)
-        spec = _conductor(_Table(t.raw("conductor", None, required=True), t.key("conductor")))
-        turns = t.integer("turns", 1)
-        insulation = t.quantity("insulation_after", "length", 0.0, nonnegative=True)
-        repeat = t.integer("repeat", 1)
-        align = t.text("align", "centre", ALIGNS)
-        t.close()
-        layers.append(Layer(winding, spec, turns, insulation, repeat, align, t.path))
-
-    placed: list[PlacedConductor] = []
-    for t in _list_of_tables(top, "conductor"):
-        winding = _winding_ref(t, names)
-        at = t.raw("at", None, required=True)
-        if not isinstance(at, list) or len(at) != 2:
-            raise CaseError(t.key("at"), "expected two coordinates", 'write at = ["0.7 mm", "0.5 mm"]')
-        xy = (quantity(at[0], "length", t.key("at") + "[1]"), quantity(at[1], "length", t.key("at") + "[2]"))
-        # the remaining keys describe the shape, as in a layer's conductor table
-        shape_keys = {k: v for k, v in t.data.items() if k not in ("winding", "at")}
-        t.used.update(shape_keys)
-        spec = _conductor(_Table(shape_keys, t.path))
-        placed.append(PlacedConductor(winding, spec, xy, t.path))
+    layers = _layers(top, names)
+    placed = _placed(top, names)
+    variants = _variants(top, names)
+    compare_frequency = _compare(top, frequencies)
 
     core = _core(top, window, model)
 
@@ -443,16 +440,103 @@ def _parse(doc: dict, path: str) -> Case:
     mesh_table.close()
     top.close()
 
-    for w in windings:
-        if not any(l.winding == w.name for l in layers) and not any(c.winding == w.name for c in placed):
-            raise CaseError(f"winding[{names.index(w.name) + 1}]", f'winding "{w.name}" has no turns',
-                            "add a [[layer]] or [[conductor]] with this winding, or remove the winding")
-
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path, core, _notes(model))
-    if window.boundary == "ideal-core":
-        _check_balance(case)
+                MeshOptions(density, far), path, core, _notes(model), tuple(variants), compare_frequency)
+    for arrangement in variant_cases(case):
+        _check_arrangement(arrangement)
     return case
+
+
+def _check_arrangement(case: Case) -> None:
+    """Every winding has turns; an ideal-core window balances its ampere-turns."""
+    where = f"variant[{case.variant_index}]." if case.variant_index else ""
+    names = [w.name for w in case.windings]
+    for w in case.windings:
+        if winding_turns(case, w.name) == 0:
+            raise CaseError(f"{where}winding[{names.index(w.name) + 1}]" if not where else f"{where}layer",
+                            f'winding "{w.name}" has no turns' + (f" in variant {case.variant}" if where else ""),
+                            "add a [[layer]] or [[conductor]] with this winding, or remove the winding")
+    if case.window.boundary == "ideal-core":
+        _check_balance(case, where)
+
+
+def _layers(table: _Table, names: list[str]) -> list[Layer]:
+    layers: list[Layer] = []
+    for t in _list_of_tables(table, "layer"):
+        winding = _winding_ref(t, names)
+        spec = _conductor(_Table(t.raw("conductor", None, required=True), t.key("conductor")))
+        turns = t.integer("turns", 1)
+        insulation = t.quantity("insulation_after", "length", 0.0, nonnegative=True)
+        repeat = t.integer("repeat", 1)
+        align = t.text("align", "centre", ALIGNS)
+        t.close()
+        layers.append(Layer(winding, spec, turns, insulation, repeat, align, t.path))
+    return layers
+
+
+def _placed(table: _Table, names: list[str]) -> list[PlacedConductor]:
+    placed: list[PlacedConductor] = []
+    for t in _list_of_tables(table, "conductor"):
+        winding = _winding_ref(t, names)
+        at = t.raw("at", None, required=True)
+        if not isinstance(at, list) or len(at) != 2:
+            raise CaseError(t.key("at"), "expected two coordinates", 'write at = ["0.7 mm", "0.5 mm"]')
+        xy = (quantity(at[0], "length", t.key("at") + "[1]"), quantity(at[1], "length", t.key("at") + "[2]"))
+        # the remaining keys describe the shape, as in a layer's conductor table
+        shape_keys = {k: v for k, v in t.data.items() if k not in ("winding", "at")}
+        t.used.update(shape_keys)
+        spec = _conductor(_Table(shape_keys, t.path))
+        placed.append(PlacedConductor(winding, spec, xy, t.path))
+    return placed
+
+
+def _variants(top: _Table, names: list[str]) -> list[Variant]:
+    """[[variant]] tables: a name and their own [[variant.layer]] / [[variant.conductor]] lists."""
+    variants: list[Variant] = []
+    for t in _list_of_tables(top, "variant"):
+        name = t.raw("name", None, required=True)
+        if not isinstance(name, str) or not name.strip() or "/" in name or "\\" in name:
+            raise CaseError(t.key("name"), "expected a non-empty name without slashes", 'write name = "P-S-P"')
+        if any(v.name == name for v in variants) or name == BASE_VARIANT:
+            raise CaseError(t.key("name"), f'variant "{name}" is defined twice (or is "{BASE_VARIANT}")',
+                            "give each variant its own name")
+        if not t.has("layer") and not t.has("conductor"):
+            raise CaseError(t.path, "has no [[variant.layer]] or [[variant.conductor]]",
+                            "list the variant's layers (they replace the case's layers)")
+        layers = _layers(t, names) if t.has("layer") else None
+        placed = _placed(t, names) if t.has("conductor") else None
+        t.close()
+        variants.append(Variant(name, None if layers is None else tuple(layers),
+                                None if placed is None else tuple(placed)))
+    return variants
+
+
+def _compare(top: _Table, frequencies: tuple[float, ...]) -> float | None:
+    """[compare] frequency: where the variants' losses are compared (nearest solved frequency)."""
+    if not top.has("compare"):
+        top.raw("compare")
+        return None
+    table = _Table(top.raw("compare"), "compare")
+    f = table.quantity("frequency", "frequency", required=True, positive=True)
+    table.close()
+    return f
+
+
+def variant_cases(case: Case) -> list[Case]:
+    """The arrangements to solve: the case itself when it has no variants;
+    otherwise the base arrangement (when the case lists layers or conductors
+    of its own) and then every variant, each a complete case."""
+    if not case.variants:
+        return [case]
+    out = []
+    if case.layers or case.conductors:
+        out.append(replace(case, variants=(), variant=BASE_VARIANT, variant_index=0))
+    for i, v in enumerate(case.variants):
+        out.append(replace(case, variants=(), variant=v.name, variant_index=i + 1,
+                           layers=case.layers if v.layers is None else v.layers,
+                           conductors=case.conductors if v.conductors is None else v.conductors,
+                           title=f"{case.title} [{v.name}]"))
+    return out
 
 
 def _core(top: _Table, window: Window, model: Model) -> Core | None:
@@ -515,14 +599,14 @@ def winding_turns(case: Case, name: str) -> int:
             + sum(1 for c in case.conductors if c.winding == name))
 
 
-def _check_balance(case: Case) -> None:
+def _check_balance(case: Case, where: str = "") -> None:
     mmf = [winding_turns(case, w.name) * w.phasor for w in case.windings]
     net = sum(mmf)
     scale = sum(abs(m) for m in mmf)
     if scale > 0 and abs(net) > 1e-6 * scale:
         parts = ", ".join(f"{w.name} {winding_turns(case, w.name)} x {w.current:g} A at {w.phase_deg:g} deg"
                           for w in case.windings)
-        raise CaseError("winding", f"ampere-turns do not sum to zero in an ideal-core window "
+        raise CaseError(f"{where}winding", f"ampere-turns do not sum to zero in an ideal-core window "
                         f"({parts}; net {abs(net):.4g} A)",
                         "set currents and phases so that the sum of N*I is zero; an inductor or a flyback "
                         'needs window.boundary = "core" with a [core] table and a [[gap]], or "open" for no core')
@@ -548,7 +632,8 @@ def load_case(path: str | Path) -> Case:
         raise CaseError("", f"TOML syntax error: {error}", "fix the syntax at that line", name) from None
     case = parse_case(doc, name)
     try:
-        place(case)
+        for arrangement in variant_cases(case):
+            place(arrangement)
     except CaseError as error:
         raise error.in_file(name) from None
     return case

@@ -16,13 +16,14 @@ import time
 from pathlib import Path
 
 from fem.sweep import conductor_resistivities, run_sweep
-from geometry.case import Case, load_case, winding_turns
+from geometry.case import Case, load_case, variant_cases, winding_turns
 from geometry.errors import CaseError
 from geometry.layout import dc_resistance, place
 from geometry.materials import material, skin_depth
 
 from geometry.units import quantity
 
+from .comparison import folder_name, summary, write_comparison
 from .impedance import losses_from_document
 from .report import CAUTION, build_report, format_frequency, magnetic_document
 from .writers import write_all
@@ -86,6 +87,24 @@ def _load(path: str) -> Case:
     return case
 
 
+def _run_one(case: Case, out: Path, quiet: bool):
+    """Solve one arrangement, write its result files into ``out``, print its table."""
+    out.mkdir(parents=True, exist_ok=True)
+    print(f"racfield: {case.title}", file=sys.stderr)
+    sweep = run_sweep(case, progress=None if quiet else _progress(sys.stderr))
+    report = build_report(case, sweep)
+    written = write_all(report, out)
+    print(f"== {case.title}")
+    print(_summary_table(report))
+    print(_inductance_lines(report))
+    t = sweep.timings
+    print(f"mesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "
+          f"times: mesh {t['mesh_s']:.1f} s, assembly {t['assembly_s']:.1f} s, solve {t['solve_s']:.1f} s")
+    print("wrote: " + ", ".join(str(p) for p in written))
+    print(f"note: {CAUTION}\n")
+    return report
+
+
 def command_run(args) -> int:
     case = _load(args.case)
     out = Path(args.out) if args.out else Path(args.case).with_suffix("")
@@ -96,17 +115,16 @@ def command_run(args) -> int:
     except OSError as error:
         raise CaseError("--out", f"cannot create {out} ({error.strerror})", "name a writable folder",
                         args.case) from None
-    print(f"racfield: {case.title}", file=sys.stderr)
-    sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr))
-    report = build_report(case, sweep)
-    written = write_all(report, out)
-    print(_summary_table(report))
-    print(_inductance_lines(report))
-    t = sweep.timings
-    print(f"\nmesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "
-          f"times: mesh {t['mesh_s']:.1f} s, assembly {t['assembly_s']:.1f} s, solve {t['solve_s']:.1f} s")
+    arrangements = variant_cases(case)
+    if not case.variants:
+        _run_one(case, out, args.quiet)
+        return EXIT_OK
+    reports = []
+    for arrangement in arrangements:
+        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet))
+    written = write_comparison(reports, out, case.compare_frequency)
+    print(summary(reports, case.compare_frequency))
     print("wrote: " + ", ".join(str(p) for p in written))
-    print(f"note: {CAUTION}")
     return EXIT_OK
 
 
@@ -146,7 +164,10 @@ def _check_text(case: Case) -> str:
 
 def command_check(args) -> int:
     case = _load(args.case)
-    print(_check_text(case))
+    for arrangement in variant_cases(case):
+        if arrangement.variant:
+            print(f"== variant {arrangement.variant}")
+        print(_check_text(arrangement))
     print("case is valid")
     return EXIT_OK
 

@@ -9,7 +9,7 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
-from .writers.atomic import temporary_sibling
+from .atomic import temporary_sibling
 
 LINE_MAP = "viridis"   # perceptually uniform; line colours are sampled from it
 FIELD_MAP = "magma"    # perceptually uniform; |J| maps

@@ -7,7 +7,7 @@ import io
 from pathlib import Path
 
 from ..report import Report
-from .atomic import replace_text
+from ..atomic import replace_text
 
 
 def write(report: Report, directory: Path) -> list[Path]:

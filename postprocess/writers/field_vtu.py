@@ -13,7 +13,7 @@ import meshio
 import numpy as np
 
 from ..report import Report
-from .atomic import temporary_sibling
+from ..atomic import temporary_sibling
 
 
 def write(report: Report, directory: Path) -> list[Path]:

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import numpy as np
 from matplotlib import colormaps
-from matplotlib.ticker import EngFormatter
+from matplotlib.ticker import EngFormatter, NullFormatter
 
 from ..plotting import LINE_MAP, line_colours, new_figure, save
 from ..report import Report
@@ -34,6 +34,7 @@ def write(report: Report, directory: Path) -> list[Path]:
     if top > 20:
         ax.set_yscale("log")
     ax.xaxis.set_major_formatter(EngFormatter(unit="Hz"))
+    ax.xaxis.set_minor_formatter(NullFormatter())
     ax.set_xlabel("Frequency (Hz, log scale)")
     ax.set_ylabel("Rac / Rdc (1)")
     ax.set_title(f"{report.case.title}\n{report.case.model.temperature_c:g} degC; model estimate, see the README caution",

@@ -6,7 +6,7 @@ import json
 from pathlib import Path
 
 from ..report import Report, results_document
-from .atomic import replace_text
+from ..atomic import replace_text
 
 
 def write(report: Report, directory: Path) -> list[Path]:

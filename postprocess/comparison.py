@@ -1,0 +1,151 @@
+"""Comparison of the variants of one case: table (CSV, JSON) and plots.
+
+Each variant is a complete :class:`~postprocess.report.Report`; this module
+only lines them up.  Losses in W at the case currents, leakage in H.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import re
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+from matplotlib import colormaps
+from matplotlib.ticker import EngFormatter, NullFormatter
+
+from .plotting import LINE_MAP, line_colours, new_figure, save
+from .report import Report, format_frequency, magnetic_document
+from .atomic import replace_text
+
+
+@dataclass
+class VariantRow:
+    """One variant's comparison numbers (per frequency lists)."""
+
+    name: str
+    rac_over_rdc: dict[str, list[float | None]]
+    loss_w: dict[str, list[float]]
+    total_loss_w: list[float]
+    leakage_l_h: list[float] | None
+
+
+def folder_name(variant: str) -> str:
+    """A file-system-safe folder name for a variant."""
+    return re.sub(r"[^A-Za-z0-9._-]+", "_", variant).strip("_") or "variant"
+
+
+def rows(reports: list[Report]) -> list[VariantRow]:
+    out = []
+    for report in reports:
+        leakage = magnetic_document(report).get("leakage")
+        out.append(VariantRow(report.case.variant or "base",
+                              {w.name: w.rac_over_rdc for w in report.windings},
+                              {w.name: w.loss_w for w in report.windings},
+                              report.total_loss_w, None if leakage is None else leakage["l_h"]))
+    return out
+
+
+def compare_index(frequencies: np.ndarray, wanted: float | None) -> int:
+    """Index of the solved frequency nearest (in log) to ``wanted``; the middle one by default."""
+    if wanted is None:
+        return len(frequencies) // 2
+    positive = np.where(frequencies > 0, frequencies, np.nan)
+    return int(np.nanargmin(np.abs(np.log(positive / wanted))))
+
+
+def write_comparison(reports: list[Report], directory: Path, wanted: float | None) -> list[Path]:
+    """comparison.csv, comparison.json, rac_over_rdc_variants.png and loss_by_variant.png."""
+    table = rows(reports)
+    freqs = np.asarray(reports[0].sweep.frequencies)
+    at = compare_index(freqs, wanted)
+    windings = [w.name for w in reports[0].windings]
+
+    buffer = io.StringIO()
+    out = csv.writer(buffer, lineterminator="\n")
+    out.writerow(["variant", "frequency_hz", "winding", "rac_over_rdc", "loss_w", "total_loss_w", "leakage_l_h"])
+    for row in table:
+        for i, f in enumerate(freqs):
+            for name in windings:
+                ratio = row.rac_over_rdc[name][i]
+                out.writerow([row.name, f"{f:.8g}", name, "" if ratio is None else f"{ratio:.8g}",
+                              f"{row.loss_w[name][i]:.8g}", f"{row.total_loss_w[i]:.8g}",
+                              "" if row.leakage_l_h is None else f"{row.leakage_l_h[i]:.8g}"])
+    written = [replace_text(directory / "comparison.csv", buffer.getvalue())]
+    doc = {"frequencies_hz": freqs.tolist(), "compare_frequency_hz": float(freqs[at]),
+           "variants": {r.name: {"rac_over_rdc": r.rac_over_rdc, "loss_w": r.loss_w,
+                                 "total_loss_w": r.total_loss_w, "leakage_l_h": r.leakage_l_h,
+                                 "folder": folder_name(r.name)} for r in table}}
+    written.append(replace_text(directory / "comparison.json", json.dumps(doc, indent=1) + "\n"))
+    written.append(_ratio_plot(reports[0], table, windings, freqs, directory))
+    written.append(_loss_bars(reports[0], table, windings, freqs, at, directory))
+    return written
+
+
+def _ratio_plot(first: Report, table: list[VariantRow], windings: list[str], freqs: np.ndarray,
+                directory: Path) -> Path:
+    figure = new_figure(7.0, 2.6 + 2.4 * len(windings))
+    colours = line_colours(len(table), colormaps[LINE_MAP])
+    positive = freqs > 0
+    axes = figure.subplots(len(windings), 1, sharex=True, squeeze=False)[:, 0]
+    for ax, name in zip(axes, windings):
+        for row, colour in zip(table, colours):
+            ratio = np.array([np.nan if r is None else r for r in row.rac_over_rdc[name]])
+            ax.plot(freqs[positive], ratio[positive], color=colour, marker="o", markersize=3, label=row.name)
+        ax.set_xscale("log")
+        ax.set_ylabel(f"{name}: Rac / Rdc (1)")
+        ax.grid(True, which="both", color="0.9", linewidth=0.6)
+        ax.axhline(1.0, color="0.6", linewidth=0.8, linestyle="--")
+    axes[0].legend(frameon=False, fontsize=8)
+    axes[0].set_title(f"{_base_title(first)}: variants\nmodel estimate, see the README caution", fontsize=9)
+    axes[-1].xaxis.set_major_formatter(EngFormatter(unit="Hz"))
+    axes[-1].xaxis.set_minor_formatter(NullFormatter())
+    axes[-1].set_xlabel("Frequency (Hz, log scale)")
+    return save(figure, directory / "rac_over_rdc_variants.png")
+
+
+def _loss_bars(first: Report, table: list[VariantRow], windings: list[str], freqs: np.ndarray, at: int,
+               directory: Path) -> Path:
+    figure = new_figure(7.0, 4.0)
+    ax = figure.add_subplot()
+    colours = line_colours(len(windings), colormaps[LINE_MAP])
+    bottom = np.zeros(len(table))
+    x = np.arange(len(table))
+    for name, colour in zip(windings, colours):
+        values = np.array([row.loss_w[name][at] for row in table])
+        ax.bar(x, values, bottom=bottom, color=colour, label=name, width=0.6)
+        bottom += values
+    for xi, total in zip(x, bottom):
+        ax.annotate(f"{total:.3g} W", (xi, total), ha="center", va="bottom", fontsize=8)
+    ax.set_xticks(x, [row.name for row in table])
+    ax.set_ylabel("Winding loss at the case currents (W)")
+    ax.set_title(f"{_base_title(first)}: loss at {format_frequency(freqs[at])}", fontsize=9)
+    ax.legend(frameon=False, fontsize=8)
+    ax.grid(True, axis="y", color="0.9", linewidth=0.6)
+    return save(figure, directory / "loss_by_variant.png")
+
+
+def _base_title(report: Report) -> str:
+    title = report.case.title
+    suffix = f" [{report.case.variant}]"
+    return title[: -len(suffix)] if report.case.variant and title.endswith(suffix) else title
+
+
+def summary(reports: list[Report], wanted: float | None) -> str:
+    """A text table at the comparison frequency."""
+    table = rows(reports)
+    freqs = np.asarray(reports[0].sweep.frequencies)
+    at = compare_index(freqs, wanted)
+    windings = [w.name for w in reports[0].windings]
+    head = (f"{'variant':<16} " + " ".join(f"{n[:12] + ' Rac/Rdc':>20}" for n in windings)
+            + f" {'total loss':>12} {'leakage':>12}")
+    lines = [f"comparison at {format_frequency(freqs[at])}:", head, "-" * len(head)]
+    for row in table:
+        ratios = " ".join(f"{'-' if row.rac_over_rdc[n][at] is None else f'{row.rac_over_rdc[n][at]:.4f}':>20}"
+                          for n in windings)
+        leak = "-" if row.leakage_l_h is None else f"{row.leakage_l_h[at] * 1e6:.4g} uH"
+        lines.append(f"{row.name[:16]:<16} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}")
+    return "\n".join(lines)

@@ -1,6 +1,7 @@
 """Point values of the magnetic field from a solved vector potential.
 
-``flux_density_at`` gives B = (dA/dy, -dA/dx) (T) and ``field_strength_at``
+``flux_density_at`` gives B = (dA/dy, -dA/dx) (T; axisymmetric: B_r = -dA/dz,
+B_z = dA/dr + A/r, in the window's x = r - r0, y = z) and ``field_strength_at``
 H = B / mu (A/m) at arbitrary points of the mesh, from the complex vector
 potential A_z (Wb/m, RMS phasor) on the P2 DOFs of ``problem.basis``.
 
@@ -109,23 +110,41 @@ def locate(problem, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return element, ref
 
 
-def _gradient(problem, potential: np.ndarray, element: np.ndarray, ref: np.ndarray) -> np.ndarray:
-    """grad A (2, n) at located points (NaN where ``element`` < 0)."""
+def _value_and_gradient(problem, potential: np.ndarray, element: np.ndarray,
+                        ref: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """A (n,) and grad A (2, n) at located points (NaN where ``element`` < 0)."""
     potential = np.asarray(potential)
     n = element.shape[0]
-    grad = np.full((2, n), np.nan, dtype=np.result_type(potential.dtype, float))
+    dtype = np.result_type(potential.dtype, float)
+    value = np.full(n, np.nan, dtype=dtype)
+    grad = np.full((2, n), np.nan, dtype=dtype)
     found = element >= 0
     if not found.any():
-        return grad
+        return value, grad
     dofs = problem.basis.element_dofs[:, element[found]]
     nodes = problem.mesh.p[:, dofs]                            # (2, 6, m)
-    _, dphi = _shape(ref[:, found])                           # (6, 2, m)
+    phi, dphi = _shape(ref[:, found])                         # (6, m), (6, 2, m)
     jac = np.einsum("cin,ijn->cjn", nodes, dphi)               # d x_c / d X_j
     values = potential[dofs]                                   # (6, m)
+    value[found] = np.einsum("in,in->n", values, phi)
     dref = np.einsum("in,ijn->jn", values, dphi)               # dA/dX_j
     # grad_x A = J^-T grad_X A
     grad[:, found] = _solve2(np.transpose(jac, (1, 0, 2)), dref)
-    return grad
+    return value, grad
+
+
+def _gradient(problem, potential: np.ndarray, element: np.ndarray, ref: np.ndarray) -> np.ndarray:
+    return _value_and_gradient(problem, potential, element, ref)[1]
+
+
+def _flux_density(problem, potential, points, element, ref) -> tuple[np.ndarray, np.ndarray]:
+    """Planar: B = (dA/dy, -dA/dx).  Axisymmetric (x = r - r0, y = z):
+    B_r = -dA/dz, B_z = dA/dr + A/r."""
+    value, grad = _value_and_gradient(problem, potential, element, ref)
+    offset = getattr(problem, "radius_offset", None)
+    if offset is None:
+        return grad[1], -grad[0]
+    return -grad[1], grad[0] + value / (points[0] + offset)
 
 
 def flux_density_at(problem, potential: np.ndarray, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -136,8 +155,7 @@ def flux_density_at(problem, potential: np.ndarray, points: np.ndarray) -> tuple
     points outside the mesh.
     """
     element, ref = locate(problem, points)
-    grad = _gradient(problem, potential, element, ref)
-    return grad[1], -grad[0]
+    return _flux_density(problem, potential, points, element, ref)
 
 
 def field_strength_at(problem, potential: np.ndarray, points: np.ndarray,
@@ -146,7 +164,7 @@ def field_strength_at(problem, potential: np.ndarray, points: np.ndarray,
     mu = mu0 * ``core_permeability`` in core elements and mu0 elsewhere
     (the value given to :class:`~fem.problem.WindowProblem`).  NaN outside."""
     element, ref = locate(problem, points)
-    grad = _gradient(problem, potential, element, ref)
+    bx, by = _flux_density(problem, potential, points, element, ref)
     region = np.where(element >= 0, problem.region[np.maximum(element, 0)], 0)
     mu = np.where(region == CORE, MU0 * core_permeability, MU0)
-    return grad[1] / mu, -grad[0] / mu
+    return bx / mu, by / mu

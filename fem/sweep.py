@@ -13,6 +13,7 @@ from geometry.layout import Conductor, dc_resistance, place
 from geometry.materials import material, skin_depth
 from geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
+from .mmf import MmfProfile, mmf_profile
 from .problem import WindowProblem
 
 
@@ -32,6 +33,7 @@ class FieldSnapshot:
     region: np.ndarray
     potential: np.ndarray
     current_density: np.ndarray
+    mmf: MmfProfile | None = None
 
 
 @dataclass
@@ -125,9 +127,14 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         inductance[i] = solution.inductance_per_m
         loss_matrix[i] = solution.loss_matrix_per_m
         if last:
+            mmf = None
+            if case.window.boundary != "open":
+                mmf = mmf_profile(problem, solution.potential, conductors, currents, case.window.width,
+                                  case.window.height, case.window.stacking == "across-width",
+                                  case.core.relative_permeability if case.core else 1.0)
             snapshot = FieldSnapshot(
                 f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
-                problem.current_density(f, solution.voltage_per_m, solution.potential))
+                problem.current_density(f, solution.voltage_per_m, solution.potential), mmf)
         if progress:
             progress(i + 1, nf, f)
     timings["solve_s"] = time.perf_counter() - start

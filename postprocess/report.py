@@ -16,6 +16,7 @@ import numpy as np
 from fem.sweep import SweepResult
 from geometry.case import Case
 
+from .estimates import hand_estimates
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
 CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
@@ -42,11 +43,13 @@ class WindingResult:
 
 @dataclass
 class Report:
-    """Everything the writers need."""
+    """Everything the writers need.  ``estimates``: the hand estimates of
+    :func:`postprocess.estimates.hand_estimates` for the same frequencies."""
 
     case: Case
     sweep: SweepResult
     windings: list[WindingResult]
+    estimates: dict
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -77,7 +80,8 @@ def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
 
 
 def build_report(case: Case, sweep: SweepResult) -> Report:
-    return Report(case, sweep, winding_results(case, sweep))
+    return Report(case, sweep, winding_results(case, sweep),
+                  hand_estimates(case, sweep.frequencies, conductors=sweep.conductors))
 
 
 def results_document(report: Report) -> dict:
@@ -97,14 +101,17 @@ def results_document(report: Report) -> dict:
             for w in report.windings
         },
         "total_loss_w": report.total_loss_w,
+        "estimates": report.estimates,
         "conductors": [
             {"winding": c.winding, "turn": c.turn, "shape": c.shape, "x_m": c.x, "y_m": c.y,
+             "width_m": c.width, "height_m": c.height,
              **({"r_m": case.window.radius(c.x)} if case.model.axisymmetric else {}),
              "area_m2": c.area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.result_scale),
              "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
             for c in sweep.conductors
         ],
         **magnetic_document(report),
+        **({"mmf": m} if (m := mmf_document(report)) else {}),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),
@@ -144,6 +151,23 @@ def magnetic_document(report: Report) -> dict:
     doc["loss_matrix"] = {"order": names, "re_w_per_a2": _nested(q.real), "im_w_per_a2": _nested(q.imag),
                           "balanced_only": closed}
     return doc
+
+
+def mmf_document(report: Report) -> dict | None:
+    """The MMF profile for results.json (None for an open boundary): values are
+    the real parts of the MMF phasors in phase with the first winding's current."""
+    snap = report.sweep.snapshot
+    if snap is None or snap.mmf is None:
+        return None
+    first = report.case.windings[0]
+    unit = first.phasor / abs(first.phasor) if abs(first.phasor) > 0 else 1.0
+    profile = snap.mmf
+    return {"frequency_hz": float(snap.frequency), "reference_winding": first.name,
+            "across_width": profile.across_width,
+            "position_m": profile.positions.tolist(),
+            "field_a": (profile.field * np.conj(unit)).real.tolist(),
+            "ideal_a": (profile.ideal * np.conj(unit)).real.tolist(),
+            "layer_faces_m": profile.boundaries.tolist()}
 
 
 def format_frequency(f: float) -> str:

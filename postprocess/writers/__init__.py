@@ -9,7 +9,7 @@ from pathlib import Path
 from typing import Callable
 
 from ..report import Report
-from . import conductors_csv, field_plot, field_vtu, rac_csv, rac_plot, results_json
+from . import conductors_csv, estimates_csv, field_plot, field_vtu, mmf_plot, rac_csv, rac_plot, results_json
 
 Writer = Callable[[Report, Path], list[Path]]
 
@@ -17,8 +17,10 @@ WRITERS: dict[str, Writer] = {
     "results.json": results_json.write,
     "rac.csv": rac_csv.write,
     "conductors.csv": conductors_csv.write,
+    "estimates.csv": estimates_csv.write,
     "rac_over_rdc.png": rac_plot.write,
     "current_density.png": field_plot.write,
+    "mmf.png": mmf_plot.write,
     "field.vtu": field_vtu.write,
 }
 

@@ -6,6 +6,7 @@ from pathlib import Path
 
 import numpy as np
 from matplotlib import colormaps
+from matplotlib.lines import Line2D
 from matplotlib.ticker import EngFormatter, NullFormatter
 
 from ..plotting import LINE_MAP, line_colours, new_figure, save
@@ -22,6 +23,7 @@ def write(report: Report, directory: Path) -> list[Path]:
     colours = line_colours(len(report.windings), colormaps[LINE_MAP])
     markers = ["o", "s", "^", "D", "v", "P", "X"]
     top = 1.0
+    styles = {"dowell": ("--", "Dowell"), "ferreira": (":", "Ferreira")}
     for i, (w, colour) in enumerate(zip(report.windings, colours)):
         ratio = np.array([np.nan if r is None else r for r in w.rac_over_rdc])
         if np.all(np.isnan(ratio)):
@@ -29,6 +31,13 @@ def write(report: Report, directory: Path) -> list[Path]:
         top = max(top, np.nanmax(ratio[positive]))
         ax.plot(freqs[positive], ratio[positive], color=colour, marker=markers[i % len(markers)],
                 markersize=4, linewidth=1.8, label=f"{w.name} ({w.turns} turns, Rdc {w.rdc_ohm * 1e3:.4g} m\u03a9)")
+        for method, (style, _) in styles.items():
+            values = report.estimates.get(method, {}).get(w.name, {}).get("rac_over_rdc", [])
+            estimate = np.array([np.nan if v is None else v for v in values], dtype=float)
+            if estimate.size != freqs.size or np.all(np.isnan(estimate[positive])):
+                continue
+            top = max(top, np.nanmax(estimate[positive]))
+            ax.plot(freqs[positive], estimate[positive], color=colour, linestyle=style, linewidth=1.0)
     ax.axhline(1.0, color="0.55", linewidth=0.8, linestyle="--")
     ax.set_xscale("log")
     if top > 20:
@@ -41,5 +50,8 @@ def write(report: Report, directory: Path) -> list[Path]:
                  fontsize=9)
     ax.grid(True, which="major", color="0.85", linewidth=0.7)
     ax.grid(True, which="minor", color="0.93", linewidth=0.5)
-    ax.legend(frameon=False, fontsize=8)
+    handles, labels = ax.get_legend_handles_labels()
+    handles += [Line2D([], [], color="0.35", linestyle=style, linewidth=1.0) for style, _ in styles.values()]
+    labels += [f"{name} estimate (1-D; see the notes in results.json)" for _, name in styles.values()]
+    ax.legend(handles, labels, frameon=False, fontsize=8)
     return [save(figure, directory / "rac_over_rdc.png")]

@@ -47,7 +47,8 @@ def test_full_height_foils_follow_the_staircase_at_every_layer_face(order, frequ
     assert deviation < 0.01
     # the staircase itself: peak = the largest enclosed ampere-turns of the order
     steps = np.cumsum([1 if w == "p" else -1 for w in order])
-    assert np.abs(ideal - ideal[0]).max() == pytest.approx(np.abs(steps).max(), rel=1e-6)
+    # (the first sample sits 1e-4 of the span inside the first foil: 0.12 % of a step)
+    assert np.abs(ideal - ideal[0]).max() == pytest.approx(np.abs(steps).max(), rel=2e-3)
     # and the ideal core holds no MMF at its inner wall (the anchor)
     assert abs(ideal[0]) < 0.01 * peak
 

@@ -78,7 +78,7 @@ def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
                              label=f"core, \u03bcr = {core.relative_permeability:g}"
                              + (f", {len(core.gaps)} gap{'s' if len(core.gaps) != 1 else ''}" if core.gaps else "")))
         pad = 0.05 * (right - left)
-        ax.set_xlim(left - (0.0 if axisymmetric else pad), right + pad)
+        ax.set_xlim(left - (0.3 if axisymmetric else 1.0) * pad, right + pad)
         ax.set_ylim(-yoke - pad, h_mm + yoke + pad)
         if not axisymmetric:
             ax.axvline(left, color="0.35", linewidth=0.9, linestyle="-.", zorder=2)
@@ -99,7 +99,7 @@ def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
                                linewidth=0.9, zorder=0.5))
         handles.append(Line2D([], [], color="0.5", linestyle=":", linewidth=0.9, label="window outline (open boundary: air)"))
         pad = 0.15 * max(w_mm, h_mm)
-        ax.set_xlim(0.0 if show_axis else s_mm - pad, s_mm + w_mm + pad)
+        ax.set_xlim(-0.3 * pad if show_axis else s_mm - pad, s_mm + w_mm + pad)
         ax.set_ylim(-pad, h_mm + pad)
     margins = (window.margin_inner, window.margin_outer, window.margin_bottom, window.margin_top)
     if any(m > 0 for m in margins):

@@ -1,4 +1,5 @@
-"""The ``racfield`` command: ``run`` solves a case, ``check`` validates it.
+"""The ``racfield`` command: ``run`` solves a case, ``check`` validates it,
+``report`` writes report.html from a results folder.
 
 Exit status: 0 done; 1 internal failure (a bug: please report it);
 2 bad input (one line on stderr naming the file, the key and the fix).
@@ -24,6 +25,7 @@ from geometry.materials import material, skin_depth
 from geometry.units import quantity
 
 from .comparison import folder_name, summary, write_comparison
+from .html_report import write_report
 from .impedance import losses_from_document
 from .report import CAUTION, build_report, format_frequency, magnetic_document
 from .writers import write_all
@@ -205,6 +207,12 @@ def command_loss(args) -> int:
     return EXIT_OK
 
 
+def command_report(args) -> int:
+    written = write_report(Path(args.results), Path(args.out) if args.out else None)
+    print(written)
+    return EXIT_OK
+
+
 def parser() -> argparse.ArgumentParser:
     top = argparse.ArgumentParser(prog="racfield", description="AC winding resistance from a 2-D eddy-current field solution.")
     sub = top.add_subparsers(dest="command", required=True)
@@ -221,6 +229,10 @@ def parser() -> argparse.ArgumentParser:
     loss.add_argument("--current", action="append", default=[], metavar="NAME=VALUE[@PHASE]",
                       help='a winding current (A RMS, phase in degrees), e.g. --current "secondary=6 A@180"; repeat per winding')
     loss.set_defaults(handler=command_loss)
+    report = sub.add_parser("report", help="one self-contained HTML page (report.html) from a results folder")
+    report.add_argument("results", metavar="RESULTS_DIR", help="results folder written by racfield run")
+    report.add_argument("--out", help="HTML file to write (default: RESULTS_DIR/report.html)")
+    report.set_defaults(handler=command_report)
     return top
 
 

@@ -20,7 +20,8 @@ CASES = Path(__file__).resolve().parents[1] / "cases"
 RHO20_CU, ALPHA_CU = 1.7241e-8, 0.00393
 MU0 = 4e-7 * math.pi
 
-RESULT_FILES = ["results.json", "rac.csv", "conductors.csv", "rac_over_rdc.png", "current_density.png", "field.vtu"]
+RESULT_FILES = ["results.json", "rac.csv", "conductors.csv", "estimates.csv", "rac_over_rdc.png",
+                "current_density.png", "field.vtu", "geometry.png", "conductor_loss.png", "estimates.png"]
 
 
 def _rho(temperature_c: float) -> float:

@@ -9,7 +9,8 @@ from pathlib import Path
 from typing import Callable
 
 from ..report import Report
-from . import conductors_csv, estimates_csv, field_plot, field_vtu, mmf_plot, rac_csv, rac_plot, results_json
+from . import (conductor_loss_plot, conductors_csv, estimates_csv, estimates_plot, field_plot, field_vtu,
+               geometry_plot, mmf_plot, rac_csv, rac_plot, results_json)
 
 Writer = Callable[[Report, Path], list[Path]]
 
@@ -19,7 +20,10 @@ WRITERS: dict[str, Writer] = {
     "conductors.csv": conductors_csv.write,
     "estimates.csv": estimates_csv.write,
     "rac_over_rdc.png": rac_plot.write,
+    "estimates.png": estimates_plot.write,
+    "geometry.png": geometry_plot.write,
     "current_density.png": field_plot.write,
+    "conductor_loss.png": conductor_loss_plot.write,
     "mmf.png": mmf_plot.write,
     "field.vtu": field_vtu.write,
 }

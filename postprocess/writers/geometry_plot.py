@@ -122,7 +122,8 @@ def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool 
                   legend: Sequence = ()) -> tuple[Figure, Axes]:
     """The window with every conductor outlined and filled by ``faces`` (one
     colour per conductor, in the order of ``report.sweep.conductors``); turn
-    numbers inside the conductors when ``numbers`` and the count is small.
+    numbers inside the conductors when ``numbers``, the count is small and
+    they fit (the title then says so).
     ``legend``: extra handles (e.g. winding patches) before the wall entries."""
     case = report.case
     s_mm = case.window.inner_radius * 1e3 if case.model.axisymmetric else 0.0
@@ -140,24 +141,33 @@ def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool 
         else:
             patches.append(Rectangle((x - c.width / 2 * 1e3, y - c.height / 2 * 1e3), c.width * 1e3, c.height * 1e3))
     ax.add_collection(PatchCollection(patches, facecolors=list(faces), edgecolors="0.15", linewidths=0.6, zorder=3))
-    if numbers and len(conductors) <= TURN_NUMBER_LIMIT:
-        size = 7.0 if len(conductors) <= 24 else 5.5
-        for c, face in zip(conductors, faces):
-            upright = c.shape != "round" and c.height > 2.5 * c.width
-            ax.text(c.x * 1e3 + s_mm, c.y * 1e3, str(c.turn), ha="center", va="center", fontsize=size,
-                    rotation=90 if upright else 0, color=_text_colour(face), zorder=4)
     ax.set_aspect("equal")
     (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
     figure.set_size_inches(6.5, min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + 1.4), 9.5))
+    numbered = False
+    if numbers and len(conductors) <= TURN_NUMBER_LIMIT:
+        # points per mm of the drawing (the axes take about 5 of the 6.5 inches, or the height limit)
+        scale = 72.0 * min(5.0 / (x1 - x0), (figure.get_size_inches()[1] - 1.6) / (y1 - y0))
+        for c, face in zip(conductors, faces):
+            upright = c.shape != "round" and c.height > 2.5 * c.width
+            across = (c.width if upright or c.shape == "round" else c.height) * 1e3 * scale
+            along = (c.height if upright else c.width) * 1e3 * scale
+            size = min(7.0, 0.7 * across, along / (0.65 * len(str(c.turn)) + 0.3))
+            if size >= 4.0:  # smaller numbers would not be readable: leave them out
+                numbered = True
+                ax.text(c.x * 1e3 + s_mm, c.y * 1e3, str(c.turn), ha="center", va="center", fontsize=size,
+                        rotation=90 if upright else 0, color=_text_colour(face), zorder=4)
     if case.model.axisymmetric:
         ax.set_xlabel("r, radius from the axis (mm)")
         ax.set_ylabel("z, height above the window bottom (mm)")
     else:
         ax.set_xlabel("x, from the inner wall (mm)")
         ax.set_ylabel("y, from the window bottom (mm)")
+    if numbered:
+        note = "numbers: turn within its winding"
+        title += f"; {note}" if len(title.splitlines()[-1]) + len(note) < 80 else f"\n{note}"
     ax.set_title(title, fontsize=9)
-    ax.legend(handles=handles, frameon=False, fontsize=7, loc="upper center", bbox_to_anchor=(0.5, -0.12),
-              ncols=2)
+    figure.legend(handles=handles, frameon=False, fontsize=7, loc="outside lower center", ncols=2)
     return figure, ax
 
 
@@ -171,7 +181,5 @@ def write(report: Report, directory: Path) -> list[Path]:
     case = report.case
     scale = ("axisymmetric: every turn a ring" if case.model.axisymmetric
              else f"planar cross-section, {case.model.length * 1e3:.4g} mm per turn")
-    if len(faces) <= TURN_NUMBER_LIMIT:
-        scale += "; numbers: turn within its winding"
     figure, _ = window_figure(report, faces, f"{case.title}\n{scale}", legend=legend)
     return [save(figure, directory / "geometry.png")]

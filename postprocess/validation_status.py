@@ -1,0 +1,238 @@
+"""The validation checks of README's Validation table, as plain data, so that a
+report can show the validation status of the methods a case uses.
+
+Each row's text (check, reference, tolerance, measured) is README's row as it
+stands, markup included (``*title*`` italics, backtick code); README and this
+module are kept in step (tests/test_report.py compares them).
+
+``applies_to`` lists the case features a check covers; a check applies when
+any entry matches, an entry ``"a+b"`` needing all of its parts:
+
+* ``"all"``: every case (resistivity, mesh, energy balance, loss matrices ...)
+* ``"round"`` / ``"rect"``: round-wire / rectangular or foil conductors
+* ``"open"``: the open boundary; ``"core"``: a core body of finite permeability
+* ``"inductance"``: self or magnetizing inductance reported (open or core)
+* ``"multi-winding"``: two or more windings (leakage inductance, interleaving)
+* ``"axisymmetric"``: axisymmetric models
+* ``"mmf"``: the MMF across the window is reported
+* ``"dowell"`` / ``"ferreira"``: that hand estimate is reported
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+FEATURES = ("all", "round", "rect", "open", "core", "inductance", "multi-winding", "axisymmetric", "mmf",
+            "dowell", "ferreira")
+
+
+@dataclass(frozen=True)
+class ValidationCheck:
+    check: str
+    reference: str
+    tolerance: str
+    measured: str
+    applies_to: tuple[str, ...] = ("all",)
+
+    def applies(self, features: set[str]) -> bool:
+        """True when the check covers the case's ``features`` (see FEATURES)."""
+        return any(set(entry.split("+")) <= (features | {"all"}) for entry in self.applies_to)
+
+
+VALIDATION: tuple[ValidationCheck, ...] = (
+    ValidationCheck(
+        'Isolated round wire, Rac/Rdc for radius/skin depth 0.1 to 20 (loss and impedance)',
+        'exact Bessel-function internal impedance ka J0(ka)/(2 J1(ka)), Ramo, Whinnery & Van Duzer, *Fields and Waves in Communication Electronics*; scipy.special',
+        '0.3 %',
+        '0.025 %',
+        applies_to=('round',)),
+    ValidationCheck(
+        'Full-height foils in an ideal-core window, m = 1..4 layers per winding, thickness/skin depth 0.3 to 5',
+        'Dowell\'s formula, P. L. Dowell, "Effects of eddy currents in transformer windings", Proc. IEE, 1966 (exact for this 1-D field)',
+        '0.3 %',
+        '0.033 %',
+        applies_to=('rect',)),
+    ValidationCheck(
+        'Round wire without net current in a uniform transverse AC field, radius/skin depth 0.5 to 10',
+        'exact Bessel solution A = C J1(kr) sin(theta), C = 2 B0/(k J0(ka)) (Lammeraner & Stafl, *Eddy Currents*, 1966)',
+        '1 %',
+        '0.19 %',
+        applies_to=('round',)),
+    ValidationCheck(
+        'Rdc = rho l / A at 20 and 100 degC, round, rectangular, foil, aluminium; FEM loss at 0 Hz',
+        'IEC 60028 (copper), IEC 60889 (aluminium)',
+        '0.05 %',
+        '0.0005 %',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Meshed conductor areas against true areas',
+        'geometry',
+        '0.05 %',
+        '0.0005 %',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Skin depth in copper at 100 kHz, 20 degC = 0.209 mm',
+        'common practice',
+        '0.5 %',
+        '0.01 %',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Energy balance: sum of turn losses = Re(sum u I*)',
+        "Poynting's theorem",
+        '1e-6',
+        '1e-13',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Reciprocity: conductor impedance matrix symmetric',
+        'reciprocity theorem',
+        '1e-9',
+        '1e-15',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Open boundary: loss independent of the far radius',
+        'asymptotic boundary condition',
+        '0.1 %',
+        '4e-5 %',
+        applies_to=('open',)),
+    ValidationCheck(
+        "Ampere's law: line integral of H around a path through the centre leg, gap, yokes and outer leg = enclosed ampere-turns; and around turns inside the window",
+        "Ampere's law",
+        '0.5 %',
+        '0.002 % (core path), 0.08 % (window path)',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Gapped-core inductance against the magnetic-circuit estimate mu0 N^2 A / (g + l_core/mu_r), mu_r = 2000, gap 1 %, 3 %, 10 % of the centre-leg width: never below it by more than 1 %, ratio growing with the gap',
+        'magnetic-circuit (reluctance) model, common practice',
+        '-1 %',
+        'ratios 1.057, 1.080, 1.168',
+        applies_to=('core',)),
+    ValidationCheck(
+        'Inductance from energy 2W/I^2 against flux linkage',
+        'energy theorem',
+        '0.5 %',
+        '1.5e-12',
+        applies_to=('inductance',)),
+    ValidationCheck(
+        'Leakage inductance of full-height foil windings at low frequency against mu0 N^2 l (a/3 + b/3 + c)/h (with insulation inside the builds: the exact 1-D field energy)',
+        'handbook formula, common practice',
+        '0.5 %',
+        '1e-7',
+        applies_to=('multi-winding',)),
+    ValidationCheck(
+        'Leakage inductance against frequency, thickness/skin depth 0.3 to 5: falls strictly, and matches the 1-D Dowell solution of the foil stack',
+        'Dowell 1966',
+        '1 %',
+        '0.004 %',
+        applies_to=('multi-winding',)),
+    ValidationCheck(
+        'Two half gaps against one gap of the summed length (L within a few %); centre and outer gaps add as series reluctances',
+        "common practice; Hopkinson's law",
+        '5 %; 0.1 %',
+        '-2.8 %; 0.01 %',
+        applies_to=('core',)),
+    ValidationCheck(
+        'Loss at any excitation from the loss matrices against a direct solve at those currents',
+        'linearity',
+        '1e-9',
+        '< 1e-9',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Axisymmetric ring Rdc, rectangle r1..r2 x h and round wire, FEM loss at 0 Hz',
+        'R = 2 pi rho / (h ln(r2/r1)) (exact at DC); rho / (R0 - sqrt(R0^2 - a^2))',
+        '0.05 %',
+        '0.002 %',
+        applies_to=('axisymmetric',)),
+    ValidationCheck(
+        'Self-inductance of a single circular turn, R/a = 40, 80, 160',
+        'Rosa & Grover, "Formulas and tables for the calculation of mutual and self-inductance", Bull. Bureau of Standards, 1912: mu0 R (ln(8R/a) - 7/4)',
+        '0.5 %',
+        '0.24 %',
+        applies_to=('axisymmetric',)),
+    ValidationCheck(
+        'Full-height foils at inner radius / window width > 1000, m = 1..3',
+        'Dowell 1966 (planar limit)',
+        '0.3 %',
+        '0.037 %',
+        applies_to=('axisymmetric',)),
+    ValidationCheck(
+        'Planar (mean turn length) vs axisymmetric winding Rdc, thin winding far from the axis; per-turn difference growing toward the axis',
+        'geometry',
+        '0.5 %',
+        '0.0005 % at r = 100 mm; innermost turn -1.2 %, -5.5 %, -17.7 %, -53 % at r = 100, 20, 5, 0.5 mm',
+        applies_to=('axisymmetric',)),
+    ValidationCheck(
+        'Axisymmetric pot core with a centre-post gap: inductance against the magnetic-circuit estimate (gap 0.1, 0.3, 1 mm)',
+        'magnetic-circuit model, common practice',
+        '-1 %',
+        'ratios 1.083, 1.145, 1.310',
+        applies_to=('axisymmetric+core',)),
+    ValidationCheck(
+        'MMF from the field at the layer boundaries (full-height foils, P-P-S-S, P-S-P-S, P-S-S-P, 1 kHz and 1 MHz) against the ampere-turn staircase',
+        "Ampere's law",
+        '1 % of the peak',
+        '0.34 %',
+        applies_to=('mmf',)),
+    ValidationCheck(
+        'MMF for round-wire layers (two layers of five 0.3 mm turns, 100 kHz)',
+        'reported, not asserted',
+        '–',
+        '3.7 % of the peak',
+        applies_to=('round+mmf',)),
+    ValidationCheck(
+        "Dowell's general layer solution against the classic F(Delta, m), m = 1..6, Delta 0.1..10",
+        'Dowell 1966',
+        '1e-10',
+        '2e-15',
+        applies_to=('dowell',)),
+    ValidationCheck(
+        'Dowell estimate against the field solution for full-height foils (comparison table)',
+        'Dowell 1966',
+        '0.3 %',
+        '0.022 %',
+        applies_to=('dowell',)),
+    ValidationCheck(
+        "Interleaving P-P-S-S to P-S-P-S: loss ratio from the field solution against Dowell's prediction, Delta = 1 and 2",
+        'Dowell 1966',
+        '1 %',
+        '0.024 %',
+        applies_to=('multi-winding+dowell',)),
+    ValidationCheck(
+        "Ferreira's proximity term against numerical integration of the transverse-field Bessel solution",
+        'Ferreira 1994; scipy',
+        '1e-6',
+        '< 1e-6',
+        applies_to=('ferreira',)),
+    ValidationCheck(
+        'Every case in `cases/` runs; Rdc against rho l N/A; low-frequency Rac/Rdc against the series of the Bessel and Dowell solutions; round-wire turns never below the isolated-wire skin loss',
+        'IEC 60028; Dowell 1966; J. A. Ferreira, "Improved analytical modeling of conductive losses in magnetic components", IEEE Trans. Power Electronics, 1994 (orthogonality of skin and proximity loss)',
+        '0.05 %',
+        'passes',
+        applies_to=('all',)),
+)
+
+
+def case_features(document: dict) -> set[str]:
+    """The features (of FEATURES) that a results.json document shows."""
+    features = {"all"}
+    shapes = {c.get("shape") for c in document.get("conductors", [])}
+    if "round" in shapes:
+        features.add("round")
+    if shapes - {"round", None}:
+        features.add("rect")
+    inductance = document.get("inductance") or {}
+    if "magnetizing_l_h" in inductance:
+        features.add("core")
+    elif "impedance" in document:
+        features.add("open")
+    if inductance:
+        features.add("inductance")
+    if len(document.get("windings", {})) >= 2:
+        features.add("multi-winding")
+    if document.get("symmetry") == "axisymmetric":
+        features.add("axisymmetric")
+    if document.get("mmf"):
+        features.add("mmf")
+    for method in ("dowell", "ferreira"):
+        if (document.get("estimates") or {}).get(method):
+            features.add(method)
+    return features

@@ -77,6 +77,7 @@ class WindingSolution:
     loss_per_m: np.ndarray
     voltage_per_m: np.ndarray
     potential: np.ndarray | None = None
+    currents: np.ndarray | None = None     #: the column currents used (A RMS)
 
 
 class WindowProblem:
@@ -230,11 +231,13 @@ class WindowProblem:
                 out[:, j, i] = value.conj()
         return out
 
-    def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents: np.ndarray,
+    def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents,
                        keep_field: bool = False) -> WindingSolution:
         """One factorization at ``frequency`` (Hz) gives the conductor impedance
-        matrix, the loss matrices of unit winding currents, and the field at
-        ``winding_currents`` (A RMS phasors, one per column of ``connection``)."""
+        matrix, the loss matrices of unit currents in the columns of
+        ``connection``, and the field at ``winding_currents`` (A RMS phasors,
+        one per column; or a function of the columns' impedance matrix
+        E^T Z E that returns them, for currents the field shares out)."""
         response = self.respond(frequency)
         omega = response.omega
         impedance = np.linalg.inv(response.admittance)
@@ -247,10 +250,12 @@ class WindowProblem:
         unit_potentials = np.zeros((self.basis.N, connection.shape[1]), dtype=complex)
         unit_potentials[self.free] = response.potential_per_volt @ unit_voltages
         q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
+        if callable(winding_currents):
+            winding_currents = winding_currents(connection.T @ impedance @ connection)
         i = np.asarray(winding_currents, dtype=complex)
         loss = np.einsum("i,kij,j->k", i.conj(), q, i).real
         potential = unit_potentials @ i if keep_field else None
-        return WindingSolution(frequency, impedance, inductance, q, loss, unit_voltages @ i, potential)
+        return WindingSolution(frequency, impedance, inductance, q, loss, unit_voltages @ i, potential, i)
 
     def current_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
         """Current density J = sigma (u - j w A) (A/m^2 RMS phasor) at the mesh nodes

@@ -14,6 +14,7 @@ from geometry.materials import material, skin_depth
 from geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
 from .mmf import MmfProfile, mmf_profile
+from .parallel import Excitation, excitation_basis, sharing
 from .problem import WindowProblem
 
 
@@ -42,8 +43,10 @@ class SweepResult:
 
     ``loss_per_m`` (Nf, Nc) W/m at the case currents; ``impedance_per_m``
     and ``inductance_per_m`` (Nf, Nc, Nc) ohm/m and H/m; ``loss_matrix_per_m``
-    (Nf, Nc, Nw, Nw) W/m per A^2 (loss of conductor k at winding currents i
-    is Re(i^H Q i)); ``connection`` (Nc, Nw) turns of each winding in series;
+    (Nf, Nc, Ne, Ne) W/m per A^2 (loss of conductor k at excitation column
+    currents x is Re(x^H Q x)); ``connection`` (Nc, Ne) the excitation basis
+    (see :mod:`fem.parallel`; one column per winding without untransposed
+    parallel conductors);
     ``rdc_per_m`` (Nc,) ohm/m from the true conductor areas (axisymmetric: ohm
     per ring from its true geometry; every ``_per_m`` value is then per turn); ``currents``
     (Nc,) A RMS phasors.
@@ -66,6 +69,8 @@ class SweepResult:
     surface_size: float
     timings: dict = field(default_factory=dict)
     snapshot: FieldSnapshot | None = None
+    excitation: Excitation | None = None
+    basis_currents: np.ndarray | None = None   #: (Nf, Ne) A RMS in the excitation columns
 
 
 def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarray:
@@ -105,15 +110,21 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     timings["assembly_s"] = time.perf_counter() - start
 
     names = [w.name for w in case.windings]
-    connection = np.zeros((len(conductors), len(names)))
-    for c in conductors:
-        connection[c.index, names.index(c.winding)] = 1.0
+    excitation = excitation_basis(case, conductors)
+    connection = excitation.basis
     winding_currents = np.array([w.phasor for w in case.windings], dtype=complex)
-    currents = connection @ winding_currents
+
+    def share(z_basis: np.ndarray) -> np.ndarray:
+        return sharing(z_basis, excitation.windings) @ winding_currents
+
+    # nominal conductor currents: equal shares among parallel conductors
+    currents = excitation.membership @ (winding_currents / np.maximum(
+        excitation.membership.sum(axis=0) / np.maximum(excitation.turns, 1), 1))
     true_area = np.array([c.area for c in conductors])
     freqs = np.array(case.frequencies)
-    nf, nc, nw = len(freqs), len(conductors), len(names)
+    nf, nc, nw = len(freqs), len(conductors), connection.shape[1]
     loss = np.zeros((nf, nc))
+    basis_currents = np.zeros((nf, nw), dtype=complex)
     impedance = np.zeros((nf, nc, nc), dtype=complex)
     inductance = np.zeros((nf, nc, nc))
     loss_matrix = np.zeros((nf, nc, nw, nw), dtype=complex)
@@ -121,7 +132,8 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     start = time.perf_counter()
     for i, f in enumerate(freqs):
         last = i == nf - 1
-        solution = problem.solve_windings(f, connection, winding_currents, keep_field=last)
+        solution = problem.solve_windings(f, connection, share, keep_field=last)
+        basis_currents[i] = solution.currents
         loss[i] = solution.loss_per_m
         impedance[i] = solution.impedance_per_m
         inductance[i] = solution.inductance_per_m
@@ -129,7 +141,8 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         if last:
             mmf = None
             if case.window.boundary != "open":
-                mmf = mmf_profile(problem, solution.potential, conductors, currents, case.window.width,
+                mmf = mmf_profile(problem, solution.potential, conductors, connection @ solution.currents,
+                                  case.window.width,
                                   case.window.height, case.window.stacking == "across-width",
                                   case.core.relative_permeability if case.core else 1.0)
             snapshot = FieldSnapshot(
@@ -143,4 +156,4 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     return SweepResult(freqs, conductors, rho, currents, rdc, loss, impedance,
                        problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
                        problem.unknowns, window_mesh.elements,
-                       window_mesh.surface_size, timings, snapshot)
+                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents)

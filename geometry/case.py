@@ -152,6 +152,20 @@ class MeshOptions:
 
 
 @dataclass(frozen=True)
+class Parallel:
+    """A winding whose turns each have ``conductors`` conductors in parallel:
+    the winding's conductors, in turn order, taken ``conductors`` at a time.
+    ``transposed``: ideal twisting, equal current shares; otherwise the strands
+    (the same position in every turn) share one voltage and the field decides
+    their currents."""
+
+    winding: str
+    conductors: int
+    transposed: bool = False
+    key: str = "parallel[1]"
+
+
+@dataclass(frozen=True)
 class Variant:
     """An arrangement sharing everything else with its case: layers and/or
     explicitly placed conductors that replace the case's own (None: keep them)."""
@@ -179,6 +193,7 @@ class Case:
     variants: tuple["Variant", ...] = ()
     compare_frequency: float | None = None  #: Hz, where variants' losses are compared
     variant: str | None = None              #: name of this arrangement, for a variant case
+    parallel: tuple["Parallel", ...] = ()   #: windings with conductors in parallel
     variant_index: int = 0                  #: 1-based position in [[variant]]; 0 for the base
 
     def winding(self, name: str) -> Winding:
@@ -428,6 +443,7 @@ def _parse(doc: dict, path: str) -> Case:
     placed = _placed(top, names)
     variants = _variants(top, names)
     compare_frequency = _compare(top, frequencies)
+    parallel = _parallels(top, names)
 
     core = _core(top, window, model)
 
@@ -441,7 +457,8 @@ def _parse(doc: dict, path: str) -> Case:
     top.close()
 
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path, core, _notes(model), tuple(variants), compare_frequency)
+                MeshOptions(density, far), path, core, _notes(model), tuple(variants), compare_frequency,
+                parallel=tuple(parallel))
     for arrangement in variant_cases(case):
         _check_arrangement(arrangement)
     return case
@@ -451,6 +468,12 @@ def _check_arrangement(case: Case) -> None:
     """Every winding has turns; an ideal-core window balances its ampere-turns."""
     where = f"variant[{case.variant_index}]." if case.variant_index else ""
     names = [w.name for w in case.windings]
+    for p in case.parallel:
+        count = winding_conductors(case, p.winding)
+        if count % p.conductors:
+            raise CaseError(f"{where}{p.key}.conductors",
+                            f'winding "{p.winding}" has {count} conductors, not a multiple of {p.conductors}',
+                            "give every turn the same number of parallel conductors")
     for w in case.windings:
         if winding_turns(case, w.name) == 0:
             raise CaseError(f"{where}winding[{names.index(w.name) + 1}]" if not where else f"{where}layer",
@@ -593,10 +616,37 @@ def _notes(model: Model) -> tuple[str, ...]:
     return ()
 
 
-def winding_turns(case: Case, name: str) -> int:
-    """Number of turns (conductors in series) of winding ``name``."""
+def winding_conductors(case: Case, name: str) -> int:
+    """Number of conductors of winding ``name``."""
     return (sum(l.turns * l.repeat for l in case.layers if l.winding == name)
             + sum(1 for c in case.conductors if c.winding == name))
+
+
+def parallel_of(case: Case, name: str) -> Parallel:
+    """The parallel-conductor setting of winding ``name`` (one conductor per turn by default)."""
+    return next((p for p in case.parallel if p.winding == name), Parallel(name, 1))
+
+
+def winding_turns(case: Case, name: str) -> int:
+    """Number of turns (in series) of winding ``name``."""
+    return winding_conductors(case, name) // parallel_of(case, name).conductors
+
+
+def _parallels(top: _Table, names: list[str]) -> list[Parallel]:
+    """[[parallel]] tables: winding, conductors (per turn), transposed."""
+    out: list[Parallel] = []
+    for t in _list_of_tables(top, "parallel"):
+        winding = _winding_ref(t, names)
+        if any(p.winding == winding for p in out):
+            raise CaseError(t.key("winding"), f'winding "{winding}" has two [[parallel]] tables', "keep one")
+        count = t.integer("conductors", None, minimum=2)
+        transposed = t.raw("transposed", False)
+        if not isinstance(transposed, bool):
+            raise CaseError(t.key("transposed"), f"expected true or false, got {transposed!r}",
+                            "write transposed = true (ideal twisting) or false")
+        t.close()
+        out.append(Parallel(winding, count, transposed, t.path))
+    return out
 
 
 def _check_balance(case: Case, where: str = "") -> None:

@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .case import Case, ConductorSpec
+from .case import Case, ConductorSpec, parallel_of
 from .errors import CaseError
 
 _TOL = 1e-12  # m; touching is allowed, overlapping is not
@@ -31,6 +31,7 @@ class Conductor:
     width: float        #: bare size along x (the diameter for round)
     height: float       #: bare size along y
     key: str            #: case key that created it, for messages
+    strand: int = 1     #: 1-based position among the turn's parallel conductors
 
     @property
     def area(self) -> float:
@@ -70,9 +71,13 @@ def place(case: Case) -> list[Conductor]:
     placed: list[Conductor] = []
 
     def add(winding: str, shape: str, x: float, y: float, w: float, h: float, key: str) -> None:
-        turn_count[winding] = turn_count.get(winding, 0) + 1
-        placed.append(Conductor(len(placed), winding, turn_count[winding],
-                                "round" if shape == "round" else "rect", x, y, w, h, key))
+        # the winding's conductors in order, taken `parallel` at a time, make its turns
+        seen = turn_count.get(winding, 0)
+        turn_count[winding] = seen + 1
+        per_turn = parallel_of(case, winding).conductors
+        placed.append(Conductor(len(placed), winding, seen // per_turn + 1,
+                                "round" if shape == "round" else "rect", x, y, w, h, key,
+                                seen % per_turn + 1))
 
     position = stack_lo
     for layer in case.layers:

@@ -7,16 +7,28 @@ from __future__ import annotations
 
 import numpy as np
 
+from fem.parallel import basis_impedance, sharing, winding_impedance
 from fem.sweep import SweepResult
 
 
 def winding_matrices(sweep: SweepResult, length: float) -> tuple[np.ndarray, np.ndarray]:
     """Winding impedance Z (Nf, Nw, Nw) in ohm and inductance L (Nf, Nw, Nw) in H:
-    turns in series, Z_w = C^T Z_c C times the turn length."""
-    c = sweep.connection
-    z = np.einsum("ki,fkl,lj->fij", c, sweep.impedance_per_m, c) * length
-    l = np.einsum("ki,fkl,lj->fij", c, sweep.inductance_per_m, c) * length
-    return z, l
+    turns in series, parallel conductors sharing as the field decides
+    (Z_w = (P^T Z_e^-1 P)^-1 with Z_e = E^T Z_c E, :mod:`fem.parallel`), times
+    the turn length.  At 0 Hz, L is the derivative of Z_w with respect to
+    j omega: W P^T R^-1 L_e R^-1 P W with R = Z_e and W = Z_w at 0 Hz."""
+    e, p = sweep.excitation.basis, sweep.excitation.windings
+    z_e = basis_impedance(sweep.impedance_per_m, e)
+    l_e = basis_impedance(sweep.inductance_per_m, e)
+    z = winding_impedance(z_e, p)
+    l = np.empty(z.shape)
+    for i, f in enumerate(sweep.frequencies):
+        if f > 0:
+            l[i] = z[i].imag / (2 * np.pi * f)
+        else:
+            left = np.linalg.solve(z_e[i], p) @ z[i]          # R^-1 P W
+            l[i] = (left.T @ l_e[i] @ left).real
+    return z * length, l * length
 
 
 def short_circuit(matrix: np.ndarray, turns: np.ndarray, balanced: bool) -> complex:
@@ -72,8 +84,12 @@ def magnetizing(l: np.ndarray, turns: np.ndarray) -> list[float]:
 
 def winding_loss_matrices(sweep: SweepResult, length: float) -> np.ndarray:
     """Q (Nf, Nw, Nw, Nw): the loss of winding w at winding currents i is
-    Re(i^H Q[f, w] i) in W (A RMS phasors)."""
-    return np.einsum("kw,fkij->fwij", sweep.connection, sweep.loss_matrix_per_m) * length
+    Re(i^H Q[f, w] i) in W (A RMS phasors); parallel strands share as the
+    field decides (x = T i, :func:`fem.parallel.sharing`)."""
+    e, p = sweep.excitation.basis, sweep.excitation.windings
+    per_winding = np.einsum("kw,fkab->fwab", sweep.excitation.membership, sweep.loss_matrix_per_m)
+    t = np.array([sharing(z_e, p) for z_e in basis_impedance(sweep.impedance_per_m, e)])
+    return np.einsum("fai,fwab,fbj->fwij", t.conj(), per_winding, t) * length
 
 
 def losses_at(q: np.ndarray, currents: np.ndarray) -> np.ndarray:

@@ -16,6 +16,8 @@ import numpy as np
 from fem.sweep import SweepResult
 from geometry.case import Case
 
+from fem.parallel import basis_impedance, winding_impedance
+
 from .estimates import hand_estimates
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
@@ -63,10 +65,14 @@ class Report:
 def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
     """Aggregate conductors into windings (turns in series)."""
     length = case.model.result_scale
+    # DC resistance through the same connection as the field solution: turns
+    # in series, parallel conductors sharing (Z_w = (P^T (E^T R E)^-1 P)^-1)
+    e, p = sweep.excitation.basis, sweep.excitation.windings
+    r_dc = winding_impedance(basis_impedance(np.diag(sweep.rdc_per_m), e), p).real * length
     results = []
-    for w in case.windings:
+    for n, w in enumerate(case.windings):
         idx = [c.index for c in sweep.conductors if c.winding == w.name]
-        rdc = float(sweep.rdc_per_m[idx].sum() * length)
+        rdc = float(r_dc[n, n])
         loss = sweep.loss_per_m[:, idx].sum(axis=1) * length
         if w.current > 0.0:
             rac = [float(p / w.current ** 2) for p in loss]
@@ -74,7 +80,7 @@ def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
         else:
             rac = [None] * len(loss)
             ratio = [None] * len(loss)
-        results.append(WindingResult(w.name, len(idx), w.current, w.phase_deg, rdc, rac, ratio,
+        results.append(WindingResult(w.name, int(sweep.excitation.turns[n]), w.current, w.phase_deg, rdc, rac, ratio,
                                      [float(p) for p in loss]))
     return results
 
@@ -134,7 +140,7 @@ def magnetic_document(report: Report) -> dict:
     """
     case, sweep = report.case, report.sweep
     names = sweep.winding_names
-    turns = sweep.connection.sum(axis=0)
+    turns = sweep.excitation.turns
     z, l = winding_matrices(sweep, case.model.result_scale)
     closed = case.window.boundary == "ideal-core"
     doc: dict = {}

@@ -25,9 +25,10 @@ from geometry.materials import material, skin_depth
 from geometry.units import quantity
 
 from .comparison import folder_name, summary, write_comparison
+from .harmonics import harmonic_losses, harmonics_table, waveform_lines
 from .html_report import write_report
 from .impedance import losses_from_document
-from .report import CAUTION, build_report, format_frequency, magnetic_document
+from .report import CAUTION, build_report, format_frequency, magnetic_document, parallel_document
 from .writers import write_all
 
 EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
@@ -74,6 +75,15 @@ def _inductance_lines(report) -> str:
         m = doc["inductance"]["magnetizing_l_h"]
         lines.append(f"magnetizing inductance (referred to {doc['inductance']['magnetizing_referred_to']}): "
                      f"{m[0] * 1e6:.5g} / {m[-1] * 1e6:.5g} uH {ends}")
+    for name, par in parallel_document(report).items():
+        if par["transposed"]:
+            lines.append(f"{name}: {par['conductors_per_turn']} conductors per turn, transposed (equal shares)")
+            continue
+        shares = ", ".join(f"{a:.4g} A at {p:.1f} deg" for a, p in zip(par["strand_current_a"][-1],
+                                                                     par["strand_phase_deg"][-1]))
+        lines.append(f"{name}: {par['conductors_per_turn']} untransposed conductors per turn; strand currents "
+                     f"{shares}; circulating-current loss {par['circulating_loss_w'][-1]:.4g} W, "
+                     f"at {format_frequency(freqs[-1])}")
     if "leakage" in doc:
         leak = doc["leakage"]
         lines.append(f"leakage inductance (referred to {leak['referred_to']}, others shorted): "
@@ -99,6 +109,9 @@ def _run_one(case: Case, out: Path, quiet: bool):
     print(f"== {case.title}")
     print(_summary_table(report))
     print(_inductance_lines(report))
+    harmonics = harmonic_losses(report)
+    if harmonics is not None:
+        print(harmonics_table(harmonics))
     t = sweep.timings
     print(f"mesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "
           f"times: mesh {t['mesh_s']:.1f} s, assembly {t['assembly_s']:.1f} s, solve {t['solve_s']:.1f} s")
@@ -170,6 +183,8 @@ def command_check(args) -> int:
         if arrangement.variant:
             print(f"== variant {arrangement.variant}")
         print(_check_text(arrangement))
+        if arrangement.waveform is not None:
+            print(waveform_lines(arrangement))
     print("case is valid")
     return EXIT_OK
 

@@ -118,6 +118,7 @@ def results_document(report: Report) -> dict:
         ],
         **magnetic_document(report),
         **({"mmf": m} if (m := mmf_document(report)) else {}),
+        **({"parallel": par} if (par := parallel_document(report)) else {}),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),
@@ -157,6 +158,35 @@ def magnetic_document(report: Report) -> dict:
     doc["loss_matrix"] = {"order": names, "re_w_per_a2": _nested(q.real), "im_w_per_a2": _nested(q.imag),
                           "balanced_only": closed}
     return doc
+
+
+def parallel_document(report: Report) -> dict:
+    """Windings with parallel conductors: each strand's current (magnitude in A
+    RMS and phase in degrees, per frequency) and the circulating-current loss:
+    the winding's loss minus its loss with equal shares (W, per frequency)."""
+    case, sweep = report.case, report.sweep
+    exc = sweep.excitation
+    out = {}
+    for setting in case.parallel:
+        w = [n.name for n in case.windings].index(setting.winding)
+        columns = [i for i, (name, _) in enumerate(exc.labels) if name == setting.winding]
+        x = sweep.basis_currents
+        if setting.transposed:
+            shares = np.repeat(x[:, columns] / setting.conductors, setting.conductors, axis=1)
+            circulating = [0.0] * len(sweep.frequencies)
+        else:
+            shares = x[:, columns]
+            q = np.einsum("k,fkab->fab", exc.membership[:, w], sweep.loss_matrix_per_m)
+            equal = x.copy()
+            equal[:, columns] = x[:, columns].sum(axis=1, keepdims=True) / len(columns)
+            actual_loss = np.einsum("fa,fab,fb->f", x.conj(), q, x).real
+            equal_loss = np.einsum("fa,fab,fb->f", equal.conj(), q, equal).real
+            circulating = ((actual_loss - equal_loss) * case.model.result_scale).tolist()
+        out[setting.winding] = {"conductors_per_turn": setting.conductors, "transposed": setting.transposed,
+                                "strand_current_a": np.abs(shares).tolist(),
+                                "strand_phase_deg": np.degrees(np.angle(shares)).tolist(),
+                                "circulating_loss_w": circulating}
+    return out
 
 
 def mmf_document(report: Report) -> dict | None:

@@ -52,7 +52,8 @@ def test_every_case_is_covered(results):
 
 NAMES = ["demo_transformer", "pcb_planar_transformer", "air_core_choke", "gapped_inductor",
          "gapped_inductor_split_gap", "pot_core_axisymmetric", "pot_core_planar",
-         "interleaving_study/P-P-S", "interleaving_study/P-S-P", "interleaving_study/P-S-P-S"]
+         "interleaving_study/P-P-S", "interleaving_study/P-S-P", "interleaving_study/P-S-P-S",
+         "paralleled_foils"]
 
 
 @pytest.mark.parametrize("name", NAMES)
@@ -202,3 +203,19 @@ def test_interleaving_study(results):
     # half the leakage energy (1-D field energy of the MMF staircase, common practice)
     assert loss["P-S-P"] < loss["P-P-S"] and loss["P-S-P-S"] < loss["P-P-S"]
     assert leak["P-S-P"] < 0.5 * leak["P-P-S"] and leak["P-S-P-S"] < 0.5 * leak["P-P-S"]
+
+
+def test_paralleled_foils_demo(results):
+    doc, _ = results["paralleled_foils"]
+    par = doc["parallel"]["secondary"]
+    # 2 turns of 2 foils 0.1 mm x 5.2 mm in parallel, 36 mm per turn, 100 degC:
+    # Rdc = 2 * (rho l / A) / 2 (IEC 60028)
+    assert doc["windings"]["secondary"]["turns"] == 2
+    assert doc["windings"]["secondary"]["rdc_ohm"] == pytest.approx(
+        2 * _rho(100.0) * 0.036 / (0.1e-3 * 5.2e-3) / 2, rel=5e-4)
+    # equal foils share the DC current equally (Ohm's law) ...
+    assert par["strand_current_a"][0] == pytest.approx([8.0, 8.0], rel=1e-6)
+    # ... and unequally at 300 kHz, with a circulating-current loss (common practice)
+    at = doc["frequencies_hz"].index(300e3)
+    high, low = sorted(par["strand_current_a"][at], reverse=True)
+    assert high / low > 1.3 and par["circulating_loss_w"][at] > 0.0

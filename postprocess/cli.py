@@ -28,7 +28,7 @@ from .comparison import folder_name, summary, write_comparison
 from .harmonics import harmonic_losses, harmonics_table, waveform_lines
 from .html_report import write_report
 from .impedance import losses_from_document
-from .report import CAUTION, build_report, format_frequency, magnetic_document, parallel_document
+from .report import CAUTION, build_report, format_frequency, parallel_document
 from .writers import write_all
 
 EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
@@ -65,7 +65,7 @@ def _summary_table(report) -> str:
 
 def _inductance_lines(report) -> str:
     """Self, magnetizing and leakage inductance at the first and last frequency."""
-    doc = magnetic_document(report)
+    doc = report.magnetic
     freqs = report.sweep.frequencies
     ends = f"at {format_frequency(freqs[0])} / {format_frequency(freqs[-1])}"
     lines = []

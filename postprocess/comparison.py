@@ -18,7 +18,7 @@ from matplotlib import colormaps
 from matplotlib.ticker import EngFormatter, NullFormatter
 
 from .plotting import LINE_MAP, line_colours, new_figure, save
-from .report import Report, format_frequency, magnetic_document
+from .report import Report, format_frequency
 from .atomic import replace_text
 
 
@@ -41,7 +41,7 @@ def folder_name(variant: str) -> str:
 def rows(reports: list[Report]) -> list[VariantRow]:
     out = []
     for report in reports:
-        leakage = magnetic_document(report).get("leakage")
+        leakage = report.magnetic.get("leakage")
         out.append(VariantRow(report.case.variant or "base",
                               {w.name: w.rac_over_rdc for w in report.windings},
                               {w.name: w.loss_w for w in report.windings},

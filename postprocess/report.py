@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -52,6 +53,11 @@ class Report:
     sweep: SweepResult
     windings: list[WindingResult]
     estimates: dict
+
+    @cached_property
+    def magnetic(self) -> dict:
+        """Impedance, inductance, leakage and loss matrices (computed once)."""
+        return magnetic_document(self)
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -116,7 +122,7 @@ def results_document(report: Report) -> dict:
              "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
             for c in sweep.conductors
         ],
-        **magnetic_document(report),
+        **report.magnetic,
         **({"mmf": m} if (m := mmf_document(report)) else {}),
         **({"parallel": par} if (par := parallel_document(report)) else {}),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,

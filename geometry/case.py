@@ -20,6 +20,8 @@ import numpy as np
 from .errors import CaseError
 from .materials import MATERIALS, ALIASES
 from .units import EXAMPLES, quantity
+from .waveform import (Spectrum, Waveform, WaveformSettings, fundamental_phasor, parse_settings,
+                       parse_waveform, plan, sine_of, spectrum)
 
 SYMMETRIES = ("planar", "axisymmetric")
 BOUNDARIES = ("ideal-core", "open", "core")
@@ -70,8 +72,11 @@ class Window:
 class Winding:
     name: str
     material: str = "copper"
-    current: float = 1.0          #: A RMS
-    phase_deg: float = 0.0        #: degrees
+    current: float = 1.0          #: A RMS (with waveforms: the fundamental's RMS)
+    phase_deg: float = 0.0        #: degrees (with waveforms: the fundamental's phase)
+    waveform: Waveform | None = None  #: the current's waveform over one period, if given
+    #: DC value, RMS and harmonics (cases with waveforms only; current/phase is then a sine at the fundamental)
+    spectrum: Spectrum | None = field(default=None, compare=False, repr=False)
 
     @property
     def phasor(self) -> complex:
@@ -195,6 +200,7 @@ class Case:
     variant: str | None = None              #: name of this arrangement, for a variant case
     parallel: tuple["Parallel", ...] = ()   #: windings with conductors in parallel
     variant_index: int = 0                  #: 1-based position in [[variant]]; 0 for the base
+    waveform: WaveformSettings | None = None  #: [waveform] and the harmonics solved (windings with waveforms)
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
@@ -419,7 +425,8 @@ def _parse(doc: dict, path: str) -> Case:
     if not isinstance(title, str):
         raise CaseError("title", "expected text", 'write title = "my transformer"')
     model = _model(_Table(top.raw("model", {}), "model"))
-    frequencies = _frequencies(_Table(top.raw("sweep", None, required=True), "sweep"))
+    settings = _waveform_settings(top)
+    frequencies = () if settings else _frequencies(_Table(top.raw("sweep", None, required=True), "sweep"))
     window = _window(_Table(top.raw("window", None, required=True), "window"), model)
 
     windings: list[Winding] = []
@@ -431,12 +438,17 @@ def _parse(doc: dict, path: str) -> Case:
             raise CaseError(t.key("name"), f'winding "{name}" is defined twice', "give each winding its own name")
         mat = t.text("material", "copper", tuple(MATERIALS) + tuple(ALIASES))
         mat = ALIASES.get(mat, mat)
+        waveform = _winding_waveform(t, settings, path)
         current = t.quantity("current", "current", 1.0, nonnegative=True)
         phase = t.quantity("phase", "angle", 0.0)
         t.close()
-        windings.append(Winding(name, mat, current, phase))
+        windings.append(Winding(name, mat, current, phase, waveform))
     if not windings:
         raise CaseError("winding", "no windings", 'add a [[winding]] table with name = "primary"')
+    wave_notes: tuple[str, ...] = ()
+    if settings:
+        windings, settings, wave_notes = _plan_waveforms(windings, settings)
+        frequencies = settings.frequencies
     names = [w.name for w in windings]
 
     layers = _layers(top, names)
@@ -457,8 +469,8 @@ def _parse(doc: dict, path: str) -> Case:
     top.close()
 
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path, core, _notes(model), tuple(variants), compare_frequency,
-                parallel=tuple(parallel))
+                MeshOptions(density, far), path, core, _notes(model) + wave_notes, tuple(variants), compare_frequency,
+                parallel=tuple(parallel), waveform=settings)
     for arrangement in variant_cases(case):
         _check_arrangement(arrangement)
     return case
@@ -650,6 +662,9 @@ def _parallels(top: _Table, names: list[str]) -> list[Parallel]:
 
 
 def _check_balance(case: Case, where: str = "") -> None:
+    if case.waveform is not None:
+        _check_waveform_balance(case, where)
+        return
     mmf = [winding_turns(case, w.name) * w.phasor for w in case.windings]
     net = sum(mmf)
     scale = sum(abs(m) for m in mmf)
@@ -687,3 +702,93 @@ def load_case(path: str | Path) -> Case:
     except CaseError as error:
         raise error.in_file(name) from None
     return case
+
+
+# ---------------------------------------------------------------------------
+# current waveforms: [waveform] and [[winding]] waveform = {...} (geometry/waveform.py)
+
+
+def _waveform_settings(top: _Table) -> WaveformSettings | None:
+    """The [waveform] table when some winding has a waveform (None otherwise).
+    The solved frequencies are then the waveforms' harmonics: [sweep] is refused."""
+    raw = top.data.get("winding")
+    with_waveform = [k for k, w in enumerate(raw if isinstance(raw, list) else [])
+                     if isinstance(w, dict) and "waveform" in w]
+    if not with_waveform:
+        if top.has("waveform"):
+            raise CaseError("waveform", "no [[winding]] has a waveform",
+                            "give a winding waveform = {...}, or remove the [waveform] table")
+        return None
+    if top.has("sweep"):
+        raise CaseError("sweep", "is not used when windings have waveforms (their harmonics are solved)",
+                        "remove the [sweep] table (waveform.fraction and waveform.max_harmonic set the harmonics)")
+    if not top.has("waveform"):
+        raise CaseError("waveform.period", f"missing: winding[{with_waveform[0] + 1}] has a waveform",
+                        'add a [waveform] table with period = "10 us" (one period of the waveforms)')
+    return parse_settings(_Table(top.raw("waveform"), "waveform"))
+
+
+def _winding_waveform(t: _Table, settings: WaveformSettings | None, path: str) -> Waveform | None:
+    """A winding's waveform = {...}; refused together with current or phase."""
+    if not t.has("waveform"):
+        if settings is not None and not t.has("current"):
+            raise CaseError(t.key("current"), "missing: other windings have waveforms",
+                            'give waveform = {...}, or current for a sine at the fundamental ("0 A" for an idle winding)')
+        return None
+    for name in ("current", "phase"):
+        if t.has(name):
+            raise CaseError(t.key(name), "given together with waveform",
+                            "give either current and phase (a sine) or waveform = {...}, not both")
+    base = Path(path).parent if path else Path(".")
+    return parse_waveform(_Table(t.raw("waveform"), t.key("waveform")), settings.period, base)
+
+
+def _plan_waveforms(windings: list[Winding], settings: WaveformSettings
+                    ) -> tuple[list[Winding], WaveformSettings, tuple[str, ...]]:
+    """Every winding's spectrum (current/phase: a sine at the fundamental), the
+    harmonics to solve, and notes for windings whose harmonics stop at the cap
+    before reaching the fraction.  Each winding's current/phase becomes its
+    fundamental phasor (the excitation of the per-frequency tables)."""
+    spectra = [spectrum(w.waveform or sine_of(w.current, w.phase_deg), settings.period,
+                        settings.max_harmonic, settings.fraction) for w in windings]
+    settings = plan(settings, spectra)
+    out, notes = [], []
+    for k, (w, s) in enumerate(zip(windings, spectra)):
+        current, phase = fundamental_phasor(s)
+        out.append(replace(w, current=current, phase_deg=phase, spectrum=s))
+        captured = s.captured(settings.harmonics)
+        if captured < settings.fraction - 1e-9:
+            notes.append(f"winding[{k + 1}] {w.name}: harmonics 1..{settings.max_harmonic} hold "
+                         f"{captured * 100:.2f} % of the AC RMS squared, short of waveform.fraction "
+                         f"{settings.fraction * 100:g} %; raise waveform.max_harmonic, or give steps a rise "
+                         "and fall time")
+    return out, settings, tuple(notes)
+
+
+def _check_waveform_balance(case: Case, where: str = "") -> None:
+    """Ideal-core window with waveforms: sum N i(t) = 0 at every instant, so at
+    DC and at every harmonic (Ampere's law around the core)."""
+    turns = [winding_turns(case, w.name) for w in case.windings]
+    spectra = [w.spectrum for w in case.windings]
+    scale = sum(n * s.rms for n, s in zip(turns, spectra))
+    if scale <= 0.0:
+        return
+
+    def fail(what: str, values: list, net: float) -> None:
+        parts = ", ".join(f"{w.name} {n} x {v}" for w, n, v in zip(case.windings, turns, values))
+        raise CaseError(f"{where}winding", f"ampere-turns do not sum to zero in an ideal-core window {what} "
+                        f"({parts}; net {net:.4g} A)",
+                        "make sum N*i(t) zero at every instant (DC and every harmonic); an inductor or a "
+                        'flyback needs window.boundary = "core" with a [core] table and a [[gap]], or "open"')
+
+    net_dc = sum(n * s.dc for n, s in zip(turns, spectra))
+    if abs(net_dc) > 1e-6 * scale:
+        fail("at DC", [f"{s.dc:.4g} A" for s in spectra], abs(net_dc))
+    h = np.array([s.harmonics for s in spectra], dtype=complex)          # (Nw, max_harmonic)
+    n_w = np.array(turns, dtype=float)[:, None]
+    net = np.abs((n_w * h).sum(axis=0))
+    bad = np.nonzero(net > 1e-6 * (n_w * np.abs(h)).sum(axis=0) + 1e-9 * scale)[0]
+    if len(bad):
+        k = int(bad[0])
+        fail(f"at harmonic {k + 1} ({(k + 1) * case.waveform.fundamental / 1e3:.6g} kHz)",
+             [f"{abs(v):.4g} A at {math.degrees(cmath.phase(v)):.4g} deg" for v in h[:, k]], float(net[k]))

@@ -20,6 +20,7 @@ from geometry.case import Case
 from fem.parallel import basis_impedance, winding_impedance
 
 from .estimates import hand_estimates
+from .harmonics import harmonics_document
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
 CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
@@ -125,6 +126,7 @@ def results_document(report: Report) -> dict:
         **report.magnetic,
         **({"mmf": m} if (m := mmf_document(report)) else {}),
         **({"parallel": par} if (par := parallel_document(report)) else {}),
+        **({"harmonics": h} if (h := harmonics_document(report)) else {}),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),

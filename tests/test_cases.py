@@ -53,7 +53,7 @@ def test_every_case_is_covered(results):
 NAMES = ["demo_transformer", "pcb_planar_transformer", "air_core_choke", "gapped_inductor",
          "gapped_inductor_split_gap", "pot_core_axisymmetric", "pot_core_planar",
          "interleaving_study/P-P-S", "interleaving_study/P-S-P", "interleaving_study/P-S-P-S",
-         "paralleled_foils"]
+         "paralleled_foils", "flyback_waveforms"]
 
 
 @pytest.mark.parametrize("name", NAMES)

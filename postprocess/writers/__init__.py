@@ -10,13 +10,14 @@ from typing import Callable
 
 from ..report import Report
 from . import (conductor_loss_plot, conductors_csv, estimates_csv, estimates_plot, field_plot, field_vtu,
-               geometry_plot, mmf_plot, rac_csv, rac_plot, results_json)
+               geometry_plot, harmonics_csv, mmf_plot, rac_csv, rac_plot, results_json)
 
 Writer = Callable[[Report, Path], list[Path]]
 
 WRITERS: dict[str, Writer] = {
     "results.json": results_json.write,
     "rac.csv": rac_csv.write,
+    "harmonics.csv": harmonics_csv.write,
     "conductors.csv": conductors_csv.write,
     "estimates.csv": estimates_csv.write,
     "rac_over_rdc.png": rac_plot.write,

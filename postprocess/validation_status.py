@@ -16,6 +16,8 @@ any entry matches, an entry ``"a+b"`` needing all of its parts:
 * ``"axisymmetric"``: axisymmetric models
 * ``"mmf"``: the MMF across the window is reported
 * ``"dowell"`` / ``"ferreira"``: that hand estimate is reported
+* ``"waveform"``: winding currents given as waveforms (harmonics)
+* ``"parallel"``: windings with parallel conductors
 """
 
 from __future__ import annotations
@@ -23,7 +25,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 FEATURES = ("all", "round", "rect", "open", "core", "inductance", "multi-winding", "axisymmetric", "mmf",
-            "dowell", "ferreira")
+            "dowell", "ferreira", "waveform", "parallel")
 
 
 @dataclass(frozen=True)
@@ -203,6 +205,48 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         '< 1e-6',
         applies_to=('ferreira',)),
     ValidationCheck(
+        'Fourier series of a symmetric triangle: harmonic amplitudes 8/(pi^2 n^2) of the peak for odd n, none for even n',
+        'E. Kreyszig, *Advanced Engineering Mathematics* (Fourier series table)',
+        '1e-12',
+        '6.4e-13',
+        applies_to=('waveform',)),
+    ValidationCheck(
+        'RMS from the harmonics against the RMS from the samples (triangle, trapezoid, sampled waveform with a step)',
+        "Parseval's theorem",
+        '0.1 %',
+        '8.1e-6',
+        applies_to=('waveform',)),
+    ValidationCheck(
+        'A pure sine waveform against the same case given as a current and phase',
+        'phasor convention',
+        '1e-9',
+        '2e-16',
+        applies_to=('waveform',)),
+    ValidationCheck(
+        'DC part of a waveform: loss = I_dc^2 Rdc',
+        'IEC 60028 (rho l N / A)',
+        '1e-9',
+        '2e-16',
+        applies_to=('waveform',)),
+    ValidationCheck(
+        'Untransposed parallel conductors: strand currents sum to the winding current',
+        "Kirchhoff's current law",
+        '1e-9',
+        '< 1e-12',
+        applies_to=('parallel',)),
+    ValidationCheck(
+        'Parallel conductors at DC share in inverse proportion to their resistances',
+        "Ohm's law",
+        '1e-4',
+        '< 1e-6',
+        applies_to=('parallel',)),
+    ValidationCheck(
+        'Untransposed against transposed paralleled foils: loss ratio at 500 kHz (greater at every frequency)',
+        'common practice',
+        '> 1.5',
+        '1.92',
+        applies_to=('parallel',)),
+    ValidationCheck(
         'Every case in `cases/` runs; Rdc against rho l N/A; low-frequency Rac/Rdc against the series of the Bessel and Dowell solutions; round-wire turns never below the isolated-wire skin loss',
         'IEC 60028; Dowell 1966; J. A. Ferreira, "Improved analytical modeling of conductive losses in magnetic components", IEEE Trans. Power Electronics, 1994 (orthogonality of skin and proximity loss)',
         '0.05 %',
@@ -235,4 +279,8 @@ def case_features(document: dict) -> set[str]:
     for method in ("dowell", "ferreira"):
         if (document.get("estimates") or {}).get(method):
             features.add(method)
+    if document.get("harmonics"):
+        features.add("waveform")
+    if document.get("parallel"):
+        features.add("parallel")
     return features

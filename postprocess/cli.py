@@ -25,7 +25,7 @@ from geometry.materials import material, skin_depth
 from geometry.units import quantity
 
 from .comparison import folder_name, summary, write_comparison
-from .harmonics import harmonic_losses, harmonics_table, waveform_lines
+from .harmonics import harmonics_table, waveform_lines
 from .html_report import write_report
 from .impedance import losses_from_document
 from .report import CAUTION, build_report, format_frequency, parallel_document
@@ -109,7 +109,7 @@ def _run_one(case: Case, out: Path, quiet: bool):
     print(f"== {case.title}")
     print(_summary_table(report))
     print(_inductance_lines(report))
-    harmonics = harmonic_losses(report)
+    harmonics = report.harmonics
     if harmonics is not None:
         print(harmonics_table(harmonics))
     t = sweep.timings

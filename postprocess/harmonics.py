@@ -30,7 +30,6 @@ import numpy as np
 
 from geometry.case import Case
 
-from .impedance import winding_loss_matrices
 
 if TYPE_CHECKING:  # report.py may import this module
     from .report import Report
@@ -124,7 +123,7 @@ def harmonic_losses(report: "Report") -> HarmonicLosses | None:
     if settings is None:
         return None
     sweep = report.sweep
-    q = winding_loss_matrices(sweep, case.model.result_scale)            # (Nf, Nw, Nw, Nw)
+    q = report.loss_matrices                                             # (Nf, Nw, Nw, Nw)
     names = list(sweep.winding_names)
     order = [names.index(w.name) for w in case.windings]
     spectra = [w.spectrum for w in case.windings]
@@ -153,7 +152,7 @@ def harmonic_losses(report: "Report") -> HarmonicLosses | None:
 
 def harmonics_document(report: "Report") -> dict | None:
     """``harmonics`` in results.json (None for a case without waveforms)."""
-    result = harmonic_losses(report)
+    result = report.harmonics
     if result is None:
         return None
     return {

@@ -295,7 +295,7 @@ def _estimates(page: _Page, doc: dict, folder: Path, prefix: str, level: int) ->
     numeric = set(range(1, len(head) - 1))
     head_html = "".join(_cell("th", h, i in numeric) for i, h in enumerate(head))
     page.add(f'<div class="scroll"><table><thead><tr>{head_html}</tr></thead><tbody>{"".join(body)}</tbody></table></div>')
-    page.add(f"<p>All frequencies: <code>estimates.csv</code> in the results folder.</p>"
+    page.add("<p>All frequencies: <code>estimates.csv</code> in the results folder.</p>"
              if (folder / "estimates.csv").exists() else "")
 
 

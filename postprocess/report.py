@@ -20,7 +20,7 @@ from geometry.case import Case
 from fem.parallel import basis_impedance, winding_impedance
 
 from .estimates import hand_estimates
-from .harmonics import harmonics_document
+from .harmonics import harmonic_losses, harmonics_document
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
 CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
@@ -59,6 +59,16 @@ class Report:
     def magnetic(self) -> dict:
         """Impedance, inductance, leakage and loss matrices (computed once)."""
         return magnetic_document(self)
+
+    @cached_property
+    def loss_matrices(self) -> np.ndarray:
+        """Winding loss matrices Q (Nf, Nw, Nw, Nw) in W/A^2 (computed once)."""
+        return winding_loss_matrices(self.sweep, self.case.model.result_scale)
+
+    @cached_property
+    def harmonics(self):
+        """The current waveforms' losses (None without waveforms; computed once)."""
+        return harmonic_losses(self)
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -162,7 +172,7 @@ def magnetic_document(report: Report) -> dict:
     if len(names) >= 2:
         l_sc, r_sc = leakage(sweep.frequencies, z, l, turns, balanced=closed)
         doc["leakage"] = {"referred_to": names[0], "l_h": l_sc, "r_ohm": r_sc}
-    q = winding_loss_matrices(sweep, case.model.result_scale)
+    q = report.loss_matrices
     doc["loss_matrix"] = {"order": names, "re_w_per_a2": _nested(q.real), "im_w_per_a2": _nested(q.imag),
                           "balanced_only": closed}
     return doc

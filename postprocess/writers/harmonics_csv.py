@@ -9,7 +9,6 @@ import io
 from pathlib import Path
 
 from ..atomic import replace_text
-from ..harmonics import harmonic_losses
 from ..report import Report
 
 COLUMNS = ["winding", "harmonic", "frequency_hz", "current_a_rms", "phase_deg", "loss_w", "rac_ohm",
@@ -21,7 +20,7 @@ def _cell(value: float | None) -> str:
 
 
 def write(report: Report, directory: Path) -> list[Path]:
-    result = harmonic_losses(report)
+    result = report.harmonics
     if result is None:
         return []
     buffer = io.StringIO()

@@ -84,9 +84,12 @@ class WindowProblem:
     """Assembled matrices of one meshed window.
 
     ``conductivity`` gives sigma (S/m) for every conductor, in mesh region
-    order.  With an open boundary the far circle carries the first-order
-    asymptotic condition dA/dn + A/R = g (exact for the net-current and dipole
-    parts of the outside field), and an applied uniform field enters through g.
+    order.  With an open boundary (or a core body) the far circle or arc
+    carries a first-order asymptotic condition through the same Robin term
+    nu0/R int A v: planar, dA/dn + A/R = g, exact for the net-current and
+    dipole parts of the outside field, with an applied uniform field entering
+    through g; axisymmetric, (1/R) d(R A)/dR = -A/R, exact for the dipole far
+    field of a coil (A ~ R^-2).  A symmetry plane or the axis carries A = 0.
     """
 
     def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray,

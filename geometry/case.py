@@ -27,7 +27,11 @@ SYMMETRIES = ("planar", "axisymmetric")
 BOUNDARIES = ("ideal-core", "open", "core")
 LEGS = ("centre", "outer")
 STACKINGS = ("across-width", "along-height")
-SHAPES = ("round", "rectangular", "foil")
+SHAPES = ("round", "rectangular", "foil", "litz")
+REPRESENTATIONS = ("strands", "bundle")
+#: densest packing of equal circles in the plane (hexagonal), pi / (2 sqrt 3)
+HEXAGONAL_PACKING = math.pi / (2.0 * math.sqrt(3.0))
+DEFAULT_PACKING = 0.6
 ALIGNS = ("centre", "start", "end", "spread")
 MAX_FREQUENCIES = 1000
 BASE_VARIANT = "base"  #: name of the case's own arrangement when it also lists variants
@@ -91,6 +95,9 @@ class ConductorSpec:
     round: ``width = height = diameter``; rectangular: ``width`` x ``height``;
     foil: ``width = thickness`` (across the layer) and ``height`` along it.
     ``outer_width``/``outer_height`` include insulation and set the pitch.
+    litz: ``width = height`` the bundle diameter, ``strands`` strands of
+    diameter ``strand_diameter``, ``representation`` "strands" (every strand
+    meshed) or "bundle" (one homogenized region).
     """
 
     shape: str
@@ -98,10 +105,15 @@ class ConductorSpec:
     height: float
     outer_width: float
     outer_height: float
+    strands: int = 1
+    strand_diameter: float = 0.0
+    representation: str = ""
 
     @property
     def area(self) -> float:
-        """True conducting cross-section in m^2."""
+        """True conducting cross-section in m^2 (litz: the copper of all strands)."""
+        if self.shape == "litz":
+            return self.strands * math.pi * self.strand_diameter ** 2 / 4.0
         if self.shape == "round":
             return math.pi * self.width ** 2 / 4.0
         return self.width * self.height
@@ -382,6 +394,8 @@ def _conductor(table: _Table) -> ConductorSpec:
             raise CaseError(table.key("outer_width" if ow < w else "outer_height"),
                             "is smaller than the bare size", "give the size over insulation")
         spec = ConductorSpec(shape, w, h, ow, oh)
+    elif shape == "litz":
+        spec = _litz(table)
     else:
         t = table.quantity("thickness", "length", required=True, positive=True)
         h = table.quantity("height", "length", required=True, positive=True)
@@ -392,6 +406,36 @@ def _conductor(table: _Table) -> ConductorSpec:
         spec = ConductorSpec(shape, t, h, ot, h)
     table.close()
     return spec
+
+
+def _litz(table: _Table) -> ConductorSpec:
+    """A round bundle of ``strands`` strands: bundle diameter given, or from the
+    packing factor (copper area over bundle area) as D = d sqrt(n / packing)."""
+    n = table.integer("strands", None, minimum=1)
+    d = table.quantity("strand_diameter", "length", required=True, positive=True)
+    if table.has("bundle_diameter") and table.has("packing"):
+        raise CaseError(table.key("packing"), "given together with bundle_diameter",
+                        "give either bundle_diameter or packing (copper area / bundle area)")
+    if table.has("bundle_diameter"):
+        bundle = table.quantity("bundle_diameter", "length", required=True, positive=True)
+        packing = n * d * d / (bundle * bundle)
+        key = table.key("bundle_diameter")
+    else:
+        packing = table.quantity("packing", "number", DEFAULT_PACKING, positive=True)
+        bundle = d * math.sqrt(n / packing)
+        key = table.key("packing")
+    if n > 1 and packing > HEXAGONAL_PACKING:
+        raise CaseError(key, f"{n} strands of {d * 1e3:.4g} mm fill {packing:.4g} of the bundle, above the "
+                        f"hexagonal limit {HEXAGONAL_PACKING:.4f}", "give a larger bundle or fewer strands")
+    if bundle < d * (1 - 1e-9):
+        raise CaseError(key, f"the bundle ({bundle * 1e3:.4g} mm) is thinner than one strand",
+                        "give a bundle diameter of at least the strand diameter")
+    od = table.quantity("outer_diameter", "length", bundle, positive=True)
+    if od < bundle * (1 - 1e-9):
+        raise CaseError(table.key("outer_diameter"), f"is smaller than the bundle diameter ({bundle * 1e3:.4g} mm)",
+                        "give the diameter over the serving, at least the bundle diameter")
+    representation = table.text("representation", "strands", REPRESENTATIONS)
+    return ConductorSpec("litz", bundle, bundle, od, od, n, d, representation)
 
 
 def _winding_ref(table: _Table, names: list[str]) -> str:
@@ -480,6 +524,7 @@ def _check_arrangement(case: Case) -> None:
     """Every winding has turns; an ideal-core window balances its ampere-turns."""
     where = f"variant[{case.variant_index}]." if case.variant_index else ""
     names = [w.name for w in case.windings]
+    _check_litz(case, where)
     for p in case.parallel:
         count = winding_conductors(case, p.winding)
         if count % p.conductors:
@@ -493,6 +538,40 @@ def _check_arrangement(case: Case) -> None:
                             "add a [[layer]] or [[conductor]] with this winding, or remove the winding")
     if case.window.boundary == "ideal-core":
         _check_balance(case, where)
+
+
+def _litz_specs(case: Case, name: str) -> list[tuple[str, ConductorSpec]]:
+    """(key, conductor) of every layer and placed conductor of winding ``name``."""
+    return ([(l.key, l.conductor) for l in case.layers if l.winding == name]
+            + [(c.key, c.conductor) for c in case.conductors if c.winding == name])
+
+
+def _check_litz(case: Case, where: str) -> None:
+    """A litz winding is all litz of one strand count and representation, and
+    takes no [[parallel]] (its strands are transposed parallel conductors)."""
+    for w in case.windings:
+        specs = _litz_specs(case, w.name)
+        litz = [(k, s) for k, s in specs if s.shape == "litz"]
+        if not litz:
+            continue
+        other = next(((k, s) for k, s in specs if s.shape != "litz"), None)
+        if other:
+            raise CaseError(f"{where}{other[0]}.conductor", f'winding "{w.name}" mixes litz and {other[1].shape} conductors',
+                            "wind each winding from one kind of conductor")
+        first = litz[0][1]
+        for k, s in litz[1:]:
+            if (s.strands, s.representation) != (first.strands, first.representation):
+                raise CaseError(f"{where}{k}.conductor", f'winding "{w.name}" mixes litz of {first.strands} and '
+                                f"{s.strands} strands (or strands and bundle representations)",
+                                "give every turn of a winding the same litz wire")
+        p = next((p for p in case.parallel if p.winding == w.name), None)
+        if p:
+            raise CaseError(f"{where}{p.key}.winding", f'winding "{w.name}" is litz: its strands are already '
+                            "transposed parallel conductors", "remove the [[parallel]] table for it")
+        if first.representation == "bundle" and case.model.axisymmetric:
+            raise CaseError(f"{where}{litz[0][0]}.conductor.representation",
+                            "the homogenized bundle is available in planar models only",
+                            'use representation = "strands" in an axisymmetric model')
 
 
 def _layers(table: _Table, names: list[str]) -> list[Layer]:
@@ -628,15 +707,28 @@ def _notes(model: Model) -> tuple[str, ...]:
     return ()
 
 
+def _strand_count(spec: ConductorSpec) -> int:
+    """Conductors one turn of ``spec`` places: every strand of explicit litz, else one."""
+    return spec.strands if spec.shape == "litz" and spec.representation == "strands" else 1
+
+
 def winding_conductors(case: Case, name: str) -> int:
-    """Number of conductors of winding ``name``."""
-    return (sum(l.turns * l.repeat for l in case.layers if l.winding == name)
-            + sum(1 for c in case.conductors if c.winding == name))
+    """Number of conductors of winding ``name`` (explicit litz: its strands)."""
+    return (sum(l.turns * l.repeat * _strand_count(l.conductor) for l in case.layers if l.winding == name)
+            + sum(_strand_count(c.conductor) for c in case.conductors if c.winding == name))
 
 
 def parallel_of(case: Case, name: str) -> Parallel:
-    """The parallel-conductor setting of winding ``name`` (one conductor per turn by default)."""
-    return next((p for p in case.parallel if p.winding == name), Parallel(name, 1))
+    """The parallel-conductor setting of winding ``name`` (one conductor per turn by default;
+    a winding of explicit litz strands: its strands, ideally transposed)."""
+    explicit = next(p for p in case.parallel if p.winding == name) if any(
+        p.winding == name for p in case.parallel) else None
+    if explicit:
+        return explicit
+    specs = _litz_specs(case, name)
+    if specs and specs[0][1].shape == "litz" and specs[0][1].representation == "strands":
+        return Parallel(name, specs[0][1].strands, True)
+    return Parallel(name, 1)
 
 
 def winding_turns(case: Case, name: str) -> int:

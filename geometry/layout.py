@@ -32,13 +32,22 @@ class Conductor:
     height: float       #: bare size along y
     key: str            #: case key that created it, for messages
     strand: int = 1     #: 1-based position among the turn's parallel conductors
+    strands: int = 0    #: homogenized litz bundle (round, ``width`` its diameter): its strand count; 0: solid
+    strand_diameter: float = 0.0  #: m, homogenized litz bundle: diameter of one strand
 
     @property
     def area(self) -> float:
-        """True conducting cross-section in m^2."""
+        """True cross-section of the region in m^2 (a litz bundle: the whole bundle circle)."""
         if self.shape == "round":
             return math.pi * self.width ** 2 / 4.0
         return self.width * self.height
+
+    @property
+    def copper_area(self) -> float:
+        """True conducting cross-section in m^2 (a litz bundle: its strands' copper)."""
+        if self.strands:
+            return self.strands * math.pi * self.strand_diameter ** 2 / 4.0
+        return self.area
 
     @property
     def radius(self) -> float:
@@ -70,14 +79,25 @@ def place(case: Case) -> list[Conductor]:
     turn_count: dict[str, int] = {}
     placed: list[Conductor] = []
 
-    def add(winding: str, shape: str, x: float, y: float, w: float, h: float, key: str) -> None:
+    def add_one(winding: str, shape: str, x: float, y: float, w: float, h: float, key: str,
+                strands: int = 0, strand_diameter: float = 0.0) -> None:
         # the winding's conductors in order, taken `parallel` at a time, make its turns
         seen = turn_count.get(winding, 0)
         turn_count[winding] = seen + 1
         per_turn = parallel_of(case, winding).conductors
         placed.append(Conductor(len(placed), winding, seen // per_turn + 1,
-                                "round" if shape == "round" else "rect", x, y, w, h, key,
-                                seen % per_turn + 1))
+                                "round" if shape in ("round", "litz") else "rect", x, y, w, h, key,
+                                seen % per_turn + 1, strands, strand_diameter))
+
+    def add(winding: str, spec: ConductorSpec, x: float, y: float, w: float, h: float, key: str) -> None:
+        if spec.shape != "litz":
+            add_one(winding, spec.shape, x, y, w, h, key)
+        elif spec.representation == "bundle":
+            add_one(winding, "litz", x, y, w, h, key, spec.strands, spec.strand_diameter)
+        else:
+            d = spec.strand_diameter
+            for sx, sy in strand_positions(spec.strands, d, w, key):
+                add_one(winding, "round", x + sx, y + sy, d, d, key)
 
     position = stack_lo
     for layer in case.layers:
@@ -108,12 +128,12 @@ def place(case: Case) -> list[Conductor]:
             for i in range(layer.turns):
                 along = start + (i + 0.5) * step
                 x, y = (centre_stack, along) if across_width else (along, centre_stack)
-                add(layer.winding, layer.conductor.shape, x, y, bw, bh, layer.key)
+                add(layer.winding, layer.conductor, x, y, bw, bh, layer.key)
             position += thickness + layer.insulation_after
 
     for item in case.conductors:
         bw, bh, _, _ = _oriented(item.conductor, "across-width")
-        add(item.winding, item.conductor.shape, item.at[0], item.at[1], bw, bh, item.key)
+        add(item.winding, item.conductor, item.at[0], item.at[1], bw, bh, item.key)
 
     for c in placed:
         if (c.x - c.width / 2 < -_TOL or c.x + c.width / 2 > win.width + _TOL
@@ -123,6 +143,31 @@ def place(case: Case) -> list[Conductor]:
                             "move it inside the window (coordinates from the inner-bottom corner)")
     _check_overlaps(placed)
     return placed
+
+
+def strand_positions(n: int, d: float, bundle: float, key: str = "conductor") -> list[tuple[float, float]]:
+    """Centres (m, from the bundle centre) of ``n`` strands of diameter ``d`` in a
+    bundle of diameter ``bundle``: one at the centre, then rings of 6k strands at
+    radius k p (k = 1..K), the last ring holding the rest, evenly spread;
+    p = (bundle/2 - d/2) / K.  Raises CaseError when p < d (strands would touch)."""
+    if n == 1:
+        return [(0.0, 0.0)]
+    rings = 1
+    while 1 + 3 * rings * (rings + 1) < n:
+        rings += 1
+    p = (bundle / 2 - d / 2) / rings
+    if p < d * (1 - 1e-9):
+        raise CaseError(f"{key}.conductor", f"{n} strands of {_mm(d)} need {rings} rings at a spacing of at least "
+                        f"{_mm(d)}, but the {_mm(bundle)} bundle leaves {_mm(p)}",
+                        "give a larger bundle_diameter or a lower packing")
+    out = [(0.0, 0.0)]
+    left = n - 1
+    for k in range(1, rings + 1):
+        count = min(6 * k, left)
+        out += [(k * p * math.cos(2 * math.pi * i / count), k * p * math.sin(2 * math.pi * i / count))
+                for i in range(count)]
+        left -= count
+    return out
 
 
 def _overlap(a: Conductor, b: Conductor) -> bool:
@@ -161,7 +206,7 @@ def dc_resistance(conductor: Conductor, resistivity: float, radius_offset: float
     wire of radius a at radius R0 gives R = rho / (R0 - sqrt(R0^2 - a^2)).
     """
     if radius_offset is None:
-        return resistivity / conductor.area
+        return resistivity / conductor.copper_area
     r = conductor.x + radius_offset
     if conductor.shape == "round":
         a = conductor.radius

@@ -153,7 +153,7 @@ def _check_text(case: Case) -> str:
              + (f", inner wall at r = {win.inner_radius * 1e3:.4g} mm, " if case.model.axisymmetric
                 else f", length {case.model.length * 1e3:.4g} mm, ") +
              f"{case.model.temperature_c:g} degC"]
-    copper = sum(c.area for c in conductors)
+    copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
     lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")
     for w in case.windings:

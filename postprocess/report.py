@@ -129,7 +129,7 @@ def results_document(report: Report) -> dict:
             {"winding": c.winding, "turn": c.turn, "shape": c.shape, "x_m": c.x, "y_m": c.y,
              "width_m": c.width, "height_m": c.height,
              **({"r_m": case.window.radius(c.x)} if case.model.axisymmetric else {}),
-             "area_m2": c.area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.result_scale),
+             "area_m2": c.copper_area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.result_scale),
              "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
             for c in sweep.conductors
         ],

@@ -77,3 +77,63 @@ def respond(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
     admittance = np.diag(conductance).astype(complex) - 1j * omega * flux_coupling
     applied_current = -1j * omega * (bt @ applied)
     return Response(omega, admittance, per_volt, applied, applied_current, flux_coupling)
+
+
+@dataclass
+class StrandedResponse:
+    """Field response at one angular frequency of a window with homogenized
+    (stranded) conductors, whose currents are imposed as uniform densities.
+
+    ``impedance`` (Nc, Nc) ohm/m, the full conductor impedance matrix (solid
+    and stranded); ``potential_per_current`` (n, Nc) Wb/m per A of each
+    conductor; ``inductance`` (Nc, Nc) H/m.
+    """
+
+    omega: float
+    impedance: np.ndarray
+    potential_per_current: np.ndarray
+    inductance: np.ndarray
+
+
+def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
+                     conductance: np.ndarray, resistance: np.ndarray, stranded: np.ndarray,
+                     omega: float) -> StrandedResponse:
+    """One factorization of S = K(omega) + j omega M for solid conductors (voltage
+    u_s unknown, B_s = int sigma phi) and stranded ones (current I_t imposed,
+    B_t = (1/A_t) int phi, skin resistance ``resistance`` R_t ohm/m):
+
+        S a - B_s u_s - B_t I_t = 0,  -j w B_s^T a + G u_s = I_s,
+        u_t = R_t I_t + j w B_t^T a.
+
+    With X = S^-1 [B_s B_t], C = B^T X and Y = G - j w C_ss:
+    Z_ss = Y^-1, Z_st = Y^-1 j w C_st, Z_ts = j w C_ts Y^-1,
+    Z_tt = R_t + j w C_tt + j w C_ts Y^-1 j w C_st; a = X_s u_s + X_t I_t.
+    """
+    scale = 1.0 / max(abs(stiffness).max(), 1e-300)
+    system = (scale * stiffness + (1j * omega * scale) * mass).tocsc()
+    with threadpool_limits(limits=1, user_api="blas"):
+        lu = spla.splu(system, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                       options={"SymmetricMode": True})
+        x = lu.solve(scale * coupling.toarray().astype(complex))
+    c = coupling.T.tocsr() @ x
+    s = np.nonzero(~stranded)[0]
+    t = np.nonzero(stranded)[0]
+    nc = len(stranded)
+    jw = 1j * omega
+    y = np.diag(conductance[s]).astype(complex) - jw * c[np.ix_(s, s)]
+    y_inv = np.linalg.inv(y) if len(s) else np.zeros((0, 0), dtype=complex)
+    z = np.zeros((nc, nc), dtype=complex)
+    z[np.ix_(s, s)] = y_inv
+    z[np.ix_(s, t)] = y_inv @ (jw * c[np.ix_(s, t)])
+    z[np.ix_(t, s)] = jw * c[np.ix_(t, s)] @ y_inv
+    z[np.ix_(t, t)] = (np.diag(resistance[t]) + jw * c[np.ix_(t, t)]
+                       + jw * c[np.ix_(t, s)] @ y_inv @ (jw * c[np.ix_(s, t)]))
+    per_current = x[:, s] @ z[s, :]
+    per_current[:, t] += x[:, t]
+    if omega > 0.0:
+        inductance = z.imag / omega
+    else:
+        # flux per unit current: solid columns carry sigma I / (sigma S), stranded I / A
+        d = np.where(stranded, 1.0, 1.0 / np.where(stranded, 1.0, conductance))
+        inductance = (d[:, None] * c.real) * d[None, :]
+    return StrandedResponse(omega, z, per_current, inductance)

@@ -25,7 +25,8 @@ from geometry.mesher import CORE, WindowMesh
 
 from .forms import (applied_field_load, axisymmetric_conductivity_mass, axisymmetric_robin_mass,
                     axisymmetric_stiffness, conductivity_mass, reluctivity_stiffness, robin_mass)
-from .harmonic import Response, respond
+from .harmonic import Response, StrandedResponse, respond, respond_stranded
+from .litz import bundle_reluctivity, bundle_resistance
 
 
 @dataclass
@@ -93,9 +94,12 @@ class WindowProblem:
     """
 
     def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray,
-                 core_permeability: float = 1.0, radius_offset: float | None = None) -> None:
+                 core_permeability: float = 1.0, radius_offset: float | None = None,
+                 strands: list[tuple[int, float, float]] | None = None) -> None:
         """``radius_offset``: None for planar; for axisymmetric the radius
-        r0 (m) of x = 0, so that r = x + r0."""
+        r0 (m) of x = 0, so that r = x + r0.  ``strands``: per conductor
+        (strand count, strand diameter m, bundle diameter m) of a homogenized
+        litz bundle, or (0, 0, 0) for a solid conductor (planar only)."""
         self.window_mesh = window_mesh
         self.radius_offset = radius_offset
         axisymmetric = radius_offset is not None
@@ -104,7 +108,13 @@ class WindowProblem:
         self.sigma_k = np.asarray(conductivity, dtype=float)
         region = window_mesh.region
         self.conductor_count = len(self.sigma_k)
-        sigma_e = np.where(region >= 0, self.sigma_k[np.maximum(region, 0)], 0.0)
+        self.strands = list(strands) if strands else [(0, 0.0, 0.0)] * self.conductor_count
+        self.stranded = np.array([n > 0 for n, _, _ in self.strands], dtype=bool)
+        if self.stranded.any() and axisymmetric:
+            raise ValueError("homogenized litz bundles need a planar model")
+        # a stranded region carries its imposed current density: no eddy current term
+        sigma_e = np.where((region >= 0) & ~self.stranded[np.maximum(region, 0)],
+                           self.sigma_k[np.maximum(region, 0)], 0.0)
         nqp = self.basis.X.shape[1]
         self.sigma_qp = np.repeat(sigma_e[:, None], nqp, axis=1)
         self.region = region
@@ -145,16 +155,23 @@ class WindowProblem:
             free = np.setdiff1d(np.arange(self.basis.N), [pin])
         self.free = free
 
-        # B[:, k] = int_{conductor k} sigma phi dx, built element by element
+        # B[:, k] = int_k sigma phi dx (stranded: int_k phi dx / A_k), built element by element
         local = np.array([(np.asarray(phi[0]) * self.basis.dx).sum(axis=1) for phi in self.basis.basis])
         in_conductor = region >= 0
-        dofs = self.basis.element_dofs[:, in_conductor]
-        cols = np.broadcast_to(region[in_conductor], dofs.shape)
-        data = local[:, in_conductor] * sigma_e[in_conductor]
-        coupling = sp.coo_matrix((data.ravel(), (dofs.ravel(), cols.ravel())),
-                                 shape=(self.basis.N, self.conductor_count)).tocsr()
         self.areas = np.bincount(region[in_conductor], weights=self.basis.dx.sum(axis=1)[in_conductor],
                                  minlength=self.conductor_count)
+        dofs = self.basis.element_dofs[:, in_conductor]
+        cols = np.broadcast_to(region[in_conductor], dofs.shape)
+        weight_e = np.where(self.stranded[np.maximum(region, 0)],
+                            1.0 / np.maximum(self.areas[np.maximum(region, 0)], 1e-300), sigma_e)
+        data = local[:, in_conductor] * weight_e[in_conductor]
+        coupling = sp.coo_matrix((data.ravel(), (dofs.ravel(), cols.ravel())),
+                                 shape=(self.basis.N, self.conductor_count)).tocsr()
+        # unit-reluctivity stiffness of every stranded region (its nu_eff varies with frequency)
+        self.region_stiffness = {
+            int(k): reluctivity_stiffness.assemble(
+                Basis(self.mesh, ElementTriP2(), elements=np.nonzero(region == k)[0]), nu=1.0).tocsr()
+            for k in np.nonzero(self.stranded)[0]}
         # DC conductance: sigma * int_k (voltage weight) dx dy
         weighted = (self.voltage_weight * self.basis.dx).sum(axis=1)
         self.conductance = self.sigma_k * np.bincount(region[in_conductor], weights=weighted[in_conductor],
@@ -162,6 +179,30 @@ class WindowProblem:
         self.stiffness = stiffness[free][:, free].tocsc()
         self.mass = mass[free][:, free].tocsc()
         self.coupling = coupling[free]
+        self.region_stiffness_free = {k: m[free][:, free].tocsc() for k, m in self.region_stiffness.items()}
+
+    def bundle_laws(self, frequency: float) -> tuple[np.ndarray, np.ndarray]:
+        """(nu_eff m/H, skin resistance ohm/m) of every conductor at ``frequency``
+        (solid conductors: nu0 and 0)."""
+        omega = 2.0 * np.pi * frequency
+        nu = np.full(self.conductor_count, 1.0 / MU0, dtype=complex)
+        resistance = np.zeros(self.conductor_count)
+        for k in np.nonzero(self.stranded)[0]:
+            n, d, bundle = self.strands[k]
+            rho = 1.0 / self.sigma_k[k]
+            nu[k] = bundle_reluctivity(n, d, bundle, rho, omega)
+            resistance[k] = bundle_resistance(n, d, rho, omega)
+        return nu, resistance
+
+    def respond_stranded(self, frequency: float) -> StrandedResponse:
+        """Factorize K(omega) + j omega M, K(omega) = K0 + sum (nu_eff - nu0) K_region,
+        and return the full conductor impedance matrix (solid and stranded)."""
+        nu, resistance = self.bundle_laws(frequency)
+        stiffness = self.stiffness
+        for k, m in self.region_stiffness_free.items():
+            stiffness = stiffness + (nu[k] - 1.0 / MU0) * m
+        return respond_stranded(stiffness, self.mass, self.coupling, self.conductance, resistance,
+                                self.stranded, 2.0 * np.pi * frequency)
 
     @property
     def unknowns(self) -> int:
@@ -189,7 +230,10 @@ class WindowProblem:
 
     def solve(self, frequency: float, currents: np.ndarray, keep_field: bool = False,
               b_applied: tuple[complex, complex] | None = None) -> FrequencySolution:
-        """Field and losses at ``frequency`` (Hz) with conductor ``currents`` (A RMS)."""
+        """Field and losses at ``frequency`` (Hz) with conductor ``currents`` (A RMS)
+        (solid conductors only; see :meth:`solve_windings` for litz bundles)."""
+        if self.stranded.any():
+            raise ValueError("solve() takes solid conductors only; use solve_windings()")
         rhs = None if b_applied is None else self.applied_field_rhs(b_applied)
         response = self.respond(frequency, rhs)
         currents = np.asarray(currents, dtype=complex)
@@ -241,6 +285,8 @@ class WindowProblem:
         ``connection``, and the field at ``winding_currents`` (A RMS phasors,
         one per column; or a function of the columns' impedance matrix
         E^T Z E that returns them, for currents the field shares out)."""
+        if self.stranded.any():
+            return self._solve_windings_stranded(frequency, connection, winding_currents, keep_field)
         response = self.respond(frequency)
         omega = response.omega
         impedance = np.linalg.inv(response.admittance)
@@ -260,9 +306,35 @@ class WindowProblem:
         potential = unit_potentials @ i if keep_field else None
         return WindingSolution(frequency, impedance, inductance, q, loss, unit_voltages @ i, potential, i)
 
-    def current_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
+    def _solve_windings_stranded(self, frequency: float, connection: np.ndarray, winding_currents,
+                                 keep_field: bool) -> WindingSolution:
+        """:meth:`solve_windings` with homogenized (stranded) conductors.  Their
+        loss matrices are R_t conj(x_i) x_j + omega Im(nu_eff) int_t grad(a_i)* . grad(a_j)."""
+        response = self.respond_stranded(frequency)
+        omega = response.omega
+        impedance = response.impedance
+        unit_voltages = impedance @ connection
+        unit_potentials = np.zeros((self.basis.N, connection.shape[1]), dtype=complex)
+        unit_potentials[self.free] = response.potential_per_current @ connection
+        q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
+        nu, resistance = self.bundle_laws(frequency)
+        for k, m in self.region_stiffness.items():
+            x = connection[k]
+            q[k] = resistance[k] * np.outer(x.conj(), x) + omega * nu[k].imag * (
+                unit_potentials.conj().T @ (m @ unit_potentials))
+        if callable(winding_currents):
+            winding_currents = winding_currents(connection.T @ impedance @ connection)
+        i = np.asarray(winding_currents, dtype=complex)
+        loss = np.einsum("i,kij,j->k", i.conj(), q, i).real
+        potential = unit_potentials @ i if keep_field else None
+        return WindingSolution(frequency, impedance, response.inductance, q, loss, unit_voltages @ i,
+                               potential, i)
+
+    def current_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray,
+                        currents: np.ndarray | None = None) -> np.ndarray:
         """Current density J = sigma (u - j w A) (A/m^2 RMS phasor) at the mesh nodes
-        (zero in air; a node shared by two conductors takes the last one's value)."""
+        (zero in air; a node shared by two conductors takes the last one's value);
+        a homogenized litz bundle carries its uniform density ``currents`` / area."""
         omega = 2.0 * np.pi * frequency
         j = np.zeros(self.basis.N, dtype=complex)
         mask = self.region >= 0
@@ -272,4 +344,7 @@ class WindowProblem:
         if self.radius_offset is not None:
             weight = 1.0 / (2.0 * np.pi * (self.basis.doflocs[0, dofs] + self.radius_offset))
         j[dofs] = self.sigma_k[k] * (voltages[k] * weight - 1j * omega * potential[dofs])
+        if currents is not None and self.stranded.any():
+            bundle = self.stranded[k]
+            j[dofs[:, bundle]] = (np.asarray(currents)[k[bundle]] / self.areas[k[bundle]])[None, :]
         return j

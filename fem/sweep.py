@@ -89,11 +89,16 @@ def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
                       axis_x=-case.window.inner_radius if case.model.axisymmetric else None)
 
 
-def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray) -> WindowProblem:
-    """The assembled problem of ``case`` on ``window_mesh`` (planar or axisymmetric)."""
+def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
+                conductors: list[Conductor] | None = None) -> WindowProblem:
+    """The assembled problem of ``case`` on ``window_mesh`` (planar or axisymmetric);
+    ``conductors`` tell homogenized litz bundles apart."""
+    strands = None
+    if conductors and any(c.strands for c in conductors):
+        strands = [(c.strands, c.strand_diameter, c.width) for c in conductors]
     return WindowProblem(window_mesh, 1.0 / resistivity,
                          case.core.relative_permeability if case.core else 1.0,
-                         case.window.inner_radius if case.model.axisymmetric else None)
+                         case.window.inner_radius if case.model.axisymmetric else None, strands)
 
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None) -> SweepResult:
@@ -106,7 +111,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     timings["mesh_s"] = time.perf_counter() - start
 
     start = time.perf_counter()
-    problem = problem_for(case, window_mesh, rho)
+    problem = problem_for(case, window_mesh, rho, conductors)
     timings["assembly_s"] = time.perf_counter() - start
 
     names = [w.name for w in case.windings]
@@ -147,7 +152,8 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
                                   case.core.relative_permeability if case.core else 1.0)
             snapshot = FieldSnapshot(
                 f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
-                problem.current_density(f, solution.voltage_per_m, solution.potential), mmf)
+                problem.current_density(f, solution.voltage_per_m, solution.potential,
+                                         connection @ solution.currents), mmf)
         if progress:
             progress(i + 1, nf, f)
     timings["solve_s"] = time.perf_counter() - start

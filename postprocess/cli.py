@@ -164,7 +164,9 @@ def _check_text(case: Case) -> str:
         lines.append(f"{w.name:<14} {winding_turns(case, w.name):>5} {layers:>6} {w.material:<10} "
                      f"{w.current:>8.4g} A {rdc * 1e3:>9.5g} mOhm")
     lines.append("skin depth at the case temperature, and the thickest conductor of each winding over it:")
-    sizes = {w.name: max(min(c.width, c.height) for c in conductors if c.winding == w.name) for w in case.windings}
+    # a homogenized litz bundle: its strand diameter
+    sizes = {w.name: max(c.strand_diameter if c.strands else min(c.width, c.height)
+                         for c in conductors if c.winding == w.name) for w in case.windings}
     head = f"{'frequency':>12} " + " ".join(f"{'delta ' + w.material[:2]:>10} {w.name[:10] + ' d/delta':>18}"
                                           for w in case.windings)
     lines.append(head)

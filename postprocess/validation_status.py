@@ -247,6 +247,18 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         '1.92',
         applies_to=('parallel',)),
     ValidationCheck(
+        'Litz wire, 6 turns of 7, 19 and 37 strands, strand diameter/skin depth 0.96: homogenized bundle against the meshed strands, total loss (loss above DC)',
+        'Lord Rayleigh, "On the influence of obstacles arranged in rectangular order upon the properties of a medium", Phil. Mag., 1892 (mixing), with the strand\'s Bessel solution (Lammeraner & Stafl 1966)',
+        '10 %',
+        '+0.37 %, +0.37 %, +0.36 % (+3.4 %, +1.5 %, +0.9 %)',
+        applies_to=('round',)),
+    ValidationCheck(
+        'Litz wire at DC, meshed strands and homogenized bundle: loss against the n-strand Rdc',
+        'IEC 60028 (rho l / (n pi d^2/4))',
+        '0.1 %',
+        '0.0005 %',
+        applies_to=('round',)),
+    ValidationCheck(
         'Every case in `cases/` runs; Rdc against rho l N/A; low-frequency Rac/Rdc against the series of the Bessel and Dowell solutions; round-wire turns never below the isolated-wire skin loss',
         'IEC 60028; Dowell 1966; J. A. Ferreira, "Improved analytical modeling of conductive losses in magnetic components", IEEE Trans. Power Electronics, 1994 (orthogonality of skin and proximity loss)',
         '0.05 %',

@@ -427,8 +427,13 @@ def hand_estimates(case: Case, frequencies=None, ferreira_field: str = "mean-fie
     for w in case.windings:
         own = [layer for layer in model.layers if layer.winding == w.name]
         base = list(model.notes) + list(model.winding_notes[w.name])
+        litz = any(layer.winding == w.name and layer.conductor.shape == "litz" for layer in case.layers)
         for method in METHODS:
             notes = list(base)
+            if litz:
+                notes.append("litz wire: not covered by this 1-D estimate")
+                out[method][w.name] = WindingEstimate([None] * len(freqs), notes).as_dict()
+                continue
             if not own:
                 notes.append("no layered turns" + (": only explicit conductors"
                                                    if any(c.winding == w.name for c in case.conductors) else ""))

@@ -137,3 +137,88 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
         d = np.where(stranded, 1.0, 1.0 / np.where(stranded, 1.0, conductance))
         inductance = (d[:, None] * c.real) * d[None, :]
     return StrandedResponse(omega, z, per_current, inductance)
+
+
+class ReducedResponse(Response):
+    """A :class:`Response` from the reduced model: the potentials per volt are
+    V x (V the projection basis), formed only when asked for."""
+
+    def __init__(self, omega, admittance, basis, reduced, applied, applied_current, flux_coupling):
+        self.omega = omega
+        self.admittance = admittance
+        self._basis = basis
+        self._reduced = reduced
+        self.applied = applied
+        self.applied_current = applied_current
+        self.flux_coupling = flux_coupling
+
+    @property
+    def potential_per_volt(self) -> np.ndarray:
+        return self._basis @ self._reduced
+
+    def per_volt_times(self, voltages: np.ndarray) -> np.ndarray:
+        """(V x) @ voltages without forming V x."""
+        return self._basis @ (self._reduced @ voltages)
+
+
+def _per_volt_times(response: Response, voltages: np.ndarray) -> np.ndarray:
+    if isinstance(response, ReducedResponse):
+        return response.per_volt_times(voltages)
+    return response.potential_per_volt @ voltages
+
+
+class ReducedModel:
+    """Galerkin projection of K + j w M onto a real orthonormal basis V built
+    from full solves X(w_i) = S(w_i)^-1 B at expansion frequencies (multi-point
+    moment matching of order zero, one-sided Krylov projection as in Z. Bai,
+    "Krylov subspace techniques for reduced-order modeling of large-scale
+    dynamical systems", Applied Numerical Mathematics, 2002).  The system is
+    affine in w, so V^T K V and V^T M V are formed once; every frequency then
+    costs one small dense solve.  Real and imaginary parts of X enter V
+    apart, so the reduced matrices stay real symmetric.
+    """
+
+    def __init__(self, stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
+                 conductance: np.ndarray) -> None:
+        self.scale = 1.0 / max(abs(stiffness).max(), 1e-300)
+        self.stiffness = (self.scale * stiffness).tocsc()
+        self.mass = (self.scale * mass).tocsc()
+        self.coupling = coupling.tocsc()
+        self.b_dense = coupling.toarray()
+        self.conductance = np.asarray(conductance, dtype=float)
+        self.basis = np.zeros((coupling.shape[0], 0))
+        self.expansion_omegas: list[float] = []
+
+    def add(self, response: Response) -> None:
+        """Extend V with the real and imaginary parts of a full response's X."""
+        x = response.potential_per_volt
+        block = np.hstack([x.real, x.imag])
+        block /= np.maximum(np.linalg.norm(block, axis=0), 1e-300)
+        v = self.basis
+        for _ in range(2):  # block Gram-Schmidt, twice for orthogonality
+            if v.shape[1]:
+                block -= v @ (v.T @ block)
+        u, s, _ = np.linalg.svd(block, full_matrices=False)
+        keep = s > 1e-10 * max(s.max(initial=0.0), 1e-300) if s.size else s > 0
+        keep &= s > 1e-8
+        self.basis = np.hstack([v, u[:, keep]])
+        self.expansion_omegas.append(response.omega)
+        v = self.basis
+        self.k_r = v.T @ (self.stiffness @ v)
+        self.m_r = v.T @ (self.mass @ v)
+        self.b_r = v.T @ self.b_dense
+        self.bt_v = (self.coupling.T @ v)
+
+    @property
+    def size(self) -> int:
+        return self.basis.shape[1]
+
+    def respond(self, omega: float) -> ReducedResponse:
+        """Reduced solve (V^T K V + j w V^T M V) x = V^T B; X ~ V x, Y = G - j w B^T X."""
+        system = self.k_r + 1j * omega * self.m_r
+        x = np.linalg.solve(system, self.scale * self.b_r.astype(complex))
+        flux_coupling = self.bt_v @ x
+        nc = self.b_dense.shape[1]
+        admittance = np.diag(self.conductance).astype(complex) - 1j * omega * flux_coupling
+        return ReducedResponse(omega, admittance, self.basis, x, np.zeros(self.basis.shape[0], dtype=complex),
+                               np.zeros(nc, dtype=complex), flux_coupling)

@@ -25,7 +25,8 @@ from geometry.mesher import CORE, WindowMesh
 
 from .forms import (applied_field_load, axisymmetric_conductivity_mass, axisymmetric_robin_mass,
                     axisymmetric_stiffness, conductivity_mass, reluctivity_stiffness, robin_mass)
-from .harmonic import Response, StrandedResponse, respond, respond_stranded
+from .harmonic import (ReducedModel, Response, StrandedResponse, _per_volt_times, respond,
+                       respond_stranded)
 from .litz import bundle_reluctivity, bundle_resistance
 
 
@@ -228,6 +229,12 @@ class WindowProblem:
         return respond(self.stiffness, self.mass, self.coupling, self.conductance,
                        2.0 * np.pi * frequency, applied_rhs)
 
+    def reduced_model(self) -> ReducedModel:
+        """An empty reduced model of this window (solid conductors only)."""
+        if self.stranded.any():
+            raise ValueError("litz bundles make K frequency dependent: no reduced model")
+        return ReducedModel(self.stiffness, self.mass, self.coupling, self.conductance)
+
     def solve(self, frequency: float, currents: np.ndarray, keep_field: bool = False,
               b_applied: tuple[complex, complex] | None = None) -> FrequencySolution:
         """Field and losses at ``frequency`` (Hz) with conductor ``currents`` (A RMS)
@@ -279,15 +286,18 @@ class WindowProblem:
         return out
 
     def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents,
-                       keep_field: bool = False) -> WindingSolution:
+                       keep_field: bool = False, response: Response | None = None) -> WindingSolution:
         """One factorization at ``frequency`` (Hz) gives the conductor impedance
         matrix, the loss matrices of unit currents in the columns of
         ``connection``, and the field at ``winding_currents`` (A RMS phasors,
         one per column; or a function of the columns' impedance matrix
-        E^T Z E that returns them, for currents the field shares out)."""
+        E^T Z E that returns them, for currents the field shares out).
+        ``response``: a ready response at ``frequency`` (e.g. from
+        :meth:`reduced_model`) instead of a factorization."""
         if self.stranded.any():
             return self._solve_windings_stranded(frequency, connection, winding_currents, keep_field)
-        response = self.respond(frequency)
+        if response is None:
+            response = self.respond(frequency)
         omega = response.omega
         impedance = np.linalg.inv(response.admittance)
         if omega > 0.0:
@@ -297,7 +307,7 @@ class WindowProblem:
             inductance = (g_inv[:, None] * response.flux_coupling.real) * g_inv[None, :]
         unit_voltages = impedance @ connection
         unit_potentials = np.zeros((self.basis.N, connection.shape[1]), dtype=complex)
-        unit_potentials[self.free] = response.potential_per_volt @ unit_voltages
+        unit_potentials[self.free] = _per_volt_times(response, unit_voltages)
         q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
         if callable(winding_currents):
             winding_currents = winding_currents(connection.T @ impedance @ connection)

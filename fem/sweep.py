@@ -1,4 +1,6 @@
-"""A case's frequency sweep: one mesh and one assembly, one factorization per frequency."""
+"""A case's frequency sweep: one mesh and one assembly, then one factorization
+per frequency (point-by-point) or a reduced-order model built from a few
+factorizations (reduced; see :func:`reduced_plan`)."""
 
 from __future__ import annotations
 
@@ -71,6 +73,75 @@ class SweepResult:
     snapshot: FieldSnapshot | None = None
     excitation: Excitation | None = None
     basis_currents: np.ndarray | None = None   #: (Nf, Ne) A RMS in the excitation columns
+    #: {"method": "reduced"|"point-by-point", "expansion_hz": [...], "max_check_deviation": float|None}
+    sweep_info: dict = field(default_factory=dict)
+
+
+#: sweeps with more frequencies than this use the reduced model by default
+REDUCED_MIN_FREQUENCIES = 8
+#: stop adding expansion points when the reduced diag Z changes less than this
+REDUCED_TOLERANCE = 1e-6
+REDUCED_START_POINTS = 3
+REDUCED_MAX_POINTS = 10
+
+
+def _diag_z(model, omega: float) -> np.ndarray:
+    return np.diag(np.linalg.inv(model.respond(omega).admittance))
+
+
+def reduced_plan(problem: WindowProblem, freqs: np.ndarray, tolerance: float = REDUCED_TOLERANCE,
+                 start: int = REDUCED_START_POINTS, most: int = REDUCED_MAX_POINTS):
+    """Build the reduced model of ``problem`` for the requested ``freqs`` (Hz, > 0).
+
+    Expansion points start at ``start`` requested frequencies spread
+    log-uniformly over the band; then the requested frequency where the
+    reduced conductor impedances (diag Z) changed most between the last two
+    bases is added, until that change is below ``tolerance`` (relative) or
+    ``most`` points are used.  Returns (model, expansion indices, last change
+    per frequency)."""
+    model = problem.reduced_model()
+    logf = np.log(freqs)
+    targets = np.linspace(logf.min(), logf.max(), min(start, len(freqs)))
+    chosen: list[int] = []
+    for t in targets:
+        order = np.argsort(np.abs(logf - t))
+        chosen.append(int(next(i for i in order if i not in chosen)))
+    omegas = 2.0 * np.pi * freqs
+    previous = None
+    change = np.full(len(freqs), np.inf)
+    for i in chosen:
+        model.add(problem.respond(freqs[i]))
+    while True:
+        current = np.array([_diag_z(model, w) for w in omegas])
+        if previous is not None:
+            change = np.max(np.abs(current - previous) / np.maximum(np.abs(current.real), 1e-300), axis=1)
+        else:
+            # first estimate: the basis without its last point against the full one
+            lesser = problem.reduced_model()
+            for i in chosen[:-1]:
+                lesser.add(problem.respond(freqs[i]))
+            older = np.array([_diag_z(lesser, w) for w in omegas])
+            change = np.max(np.abs(current - older) / np.maximum(np.abs(current.real), 1e-300), axis=1)
+        change[chosen] = 0.0
+        previous = current
+        if change.max() < tolerance or len(chosen) >= min(most, len(freqs)):
+            break
+        nxt = int(np.argmax(change))
+        chosen.append(nxt)
+        model.add(problem.respond(freqs[nxt]))
+    return model, chosen, change
+
+
+def use_reduced(case: Case, conductors: list[Conductor], method: str = "auto") -> bool:
+    """Whether the sweep of ``case`` uses the reduced model: ``method`` "exact"
+    never, "reduced" whenever possible, "auto" for more than
+    REDUCED_MIN_FREQUENCIES frequencies.  Litz bundles (frequency-dependent K)
+    and a 0 Hz point always take the point-by-point sweep."""
+    if method == "exact" or any(c.strands for c in conductors) or min(case.frequencies) <= 0.0:
+        return False
+    if len(case.frequencies) < 4:
+        return False
+    return method == "reduced" or len(case.frequencies) > REDUCED_MIN_FREQUENCIES
 
 
 def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarray:
@@ -101,8 +172,12 @@ def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
                          case.window.inner_radius if case.model.axisymmetric else None, strands)
 
 
-def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None) -> SweepResult:
-    """Place, mesh, assemble once and solve every frequency of ``case``."""
+def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
+              method: str = "auto") -> SweepResult:
+    """Place, mesh, assemble once and solve every frequency of ``case``.
+
+    ``method``: "auto" (reduced model for long sweeps without litz bundles),
+    "reduced" or "exact" (one factorization per frequency)."""
     timings = {}
     start = time.perf_counter()
     conductors = place(case)
@@ -135,9 +210,17 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     loss_matrix = np.zeros((nf, nc, nw, nw), dtype=complex)
     snapshot = None
     start = time.perf_counter()
+    model = None
+    sweep_info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
+    if use_reduced(case, conductors, method):
+        model, chosen, change = reduced_plan(problem, freqs)
+        sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
+                      "max_check_deviation": None, "reduced_size": model.size}
+        timings["reduced_build_s"] = time.perf_counter() - start
     for i, f in enumerate(freqs):
         last = i == nf - 1
-        solution = problem.solve_windings(f, connection, share, keep_field=last)
+        response = model.respond(2.0 * np.pi * f) if model is not None else None
+        solution = problem.solve_windings(f, connection, share, keep_field=last, response=response)
         basis_currents[i] = solution.currents
         loss[i] = solution.loss_per_m
         impedance[i] = solution.impedance_per_m
@@ -156,10 +239,29 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
                                          connection @ solution.currents), mmf)
         if progress:
             progress(i + 1, nf, f)
+    if model is not None:
+        # self-check: full solves at the two non-expansion frequencies of largest estimated change
+        check_start = time.perf_counter()
+        order = [int(i) for i in np.argsort(-change) if int(i) not in chosen][:2]
+        members = excitation.membership
+        deviation = 0.0
+        for i in order:
+            full = problem.solve_windings(freqs[i], connection, share)
+            exact_w = members.T @ full.loss_per_m
+            reduced_w = members.T @ loss[i]
+            ok = np.abs(exact_w) > 0
+            if ok.any():
+                deviation = max(deviation, float(np.max(np.abs(reduced_w[ok] / exact_w[ok] - 1.0))))
+            rz_full = np.diag(full.impedance_per_m).real
+            rz_red = np.diag(impedance[i]).real
+            deviation = max(deviation, float(np.max(np.abs(rz_red / rz_full - 1.0))))
+        sweep_info["check_hz"] = [float(freqs[i]) for i in order]
+        sweep_info["max_check_deviation"] = deviation
+        timings["reduced_check_s"] = time.perf_counter() - check_start
     timings["solve_s"] = time.perf_counter() - start
     offset = case.window.inner_radius if case.model.axisymmetric else None
     rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
     return SweepResult(freqs, conductors, rho, currents, rdc, loss, impedance,
                        problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
                        problem.unknowns, window_mesh.elements,
-                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents)
+                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents, sweep_info)

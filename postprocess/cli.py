@@ -99,11 +99,12 @@ def _load(path: str) -> Case:
     return case
 
 
-def _run_one(case: Case, out: Path, quiet: bool):
+def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
     """Solve one arrangement, write its result files into ``out``, print its table."""
     out.mkdir(parents=True, exist_ok=True)
     print(f"racfield: {case.title}", file=sys.stderr)
-    sweep = run_sweep(case, progress=None if quiet else _progress(sys.stderr))
+    sweep = run_sweep(case, progress=None if quiet else _progress(sys.stderr),
+                      method="exact" if exact else "auto")
     report = build_report(case, sweep)
     written = write_all(report, out)
     print(f"== {case.title}")
@@ -115,6 +116,10 @@ def _run_one(case: Case, out: Path, quiet: bool):
     t = sweep.timings
     print(f"mesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "
           f"times: mesh {t['mesh_s']:.1f} s, assembly {t['assembly_s']:.1f} s, solve {t['solve_s']:.1f} s")
+    info = sweep.sweep_info
+    if info.get("method") == "reduced":
+        print(f"sweep: reduced model from {len(info['expansion_hz'])} full solves, "
+              f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
     return report
@@ -132,11 +137,11 @@ def command_run(args) -> int:
                         args.case) from None
     arrangements = variant_cases(case)
     if not case.variants:
-        _run_one(case, out, args.quiet)
+        _run_one(case, out, args.quiet, args.exact)
         return EXIT_OK
     reports = []
     for arrangement in arrangements:
-        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet))
+        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet, args.exact))
     written = write_comparison(reports, out, case.compare_frequency)
     print(summary(reports, case.compare_frequency))
     print("wrote: " + ", ".join(str(p) for p in written))
@@ -237,6 +242,8 @@ def parser() -> argparse.ArgumentParser:
     run.add_argument("case", help="case file (TOML)")
     run.add_argument("--out", help="results folder (default: beside the case, named after it)")
     run.add_argument("--quiet", action="store_true", help="no progress lines")
+    run.add_argument("--exact", action="store_true",
+                     help="one full solve per frequency (no reduced-order sweep)")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")

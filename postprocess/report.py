@@ -137,6 +137,8 @@ def results_document(report: Report) -> dict:
         **({"mmf": m} if (m := mmf_document(report)) else {}),
         **({"parallel": par} if (par := parallel_document(report)) else {}),
         **({"harmonics": h} if (h := harmonics_document(report)) else {}),
+        "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
+                                            "max_check_deviation": None},
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),

@@ -1,0 +1,3 @@
+"""The benchmark folder holds a script, not tests."""
+
+collect_ignore = ["run_benchmark.py"]

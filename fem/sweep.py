@@ -107,21 +107,14 @@ def reduced_plan(problem: WindowProblem, freqs: np.ndarray, tolerance: float = R
         order = np.argsort(np.abs(logf - t))
         chosen.append(int(next(i for i in order if i not in chosen)))
     omegas = 2.0 * np.pi * freqs
-    previous = None
-    change = np.full(len(freqs), np.inf)
-    for i in chosen:
+    for i in chosen[:-1]:
         model.add(problem.respond(freqs[i]))
+    # first estimate: the basis without its last starting point against the full one
+    previous = np.array([_diag_z(model, w) for w in omegas])
+    model.add(problem.respond(freqs[chosen[-1]]))
     while True:
         current = np.array([_diag_z(model, w) for w in omegas])
-        if previous is not None:
-            change = np.max(np.abs(current - previous) / np.maximum(np.abs(current.real), 1e-300), axis=1)
-        else:
-            # first estimate: the basis without its last point against the full one
-            lesser = problem.reduced_model()
-            for i in chosen[:-1]:
-                lesser.add(problem.respond(freqs[i]))
-            older = np.array([_diag_z(lesser, w) for w in omegas])
-            change = np.max(np.abs(current - older) / np.maximum(np.abs(current.real), 1e-300), axis=1)
+        change = np.max(np.abs(current - previous) / np.maximum(np.abs(current.real), 1e-300), axis=1)
         change[chosen] = 0.0
         previous = current
         if change.max() < tolerance or len(chosen) >= min(most, len(freqs)):

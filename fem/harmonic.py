@@ -1,4 +1,4 @@
-"""One frequency: factorize once, answer for every conductor (Schur complement).
+"""One frequency, one factorization for every conductor.
 
 The discrete system, for potentials a (free nodes) and conductor voltages per
 metre u, is
@@ -6,78 +6,216 @@ metre u, is
     (K + j w M) a - B u = F          (field, F from an applied field)
     -j w B^T a + G u    = I          (total current of each conductor)
 
-with G = diag(sigma_k S_k).  One sparse LU of S = K + j w M gives
-X = S^-1 [B F]; the conductor admittance per metre is Y = G - j w B^T X_B and
-the conductor impedance matrix per metre is Z = Y^-1.
+with G = diag(sigma_k S_k).  Dividing the second row by -j w (w > 0) makes it
+symmetric; scaled by s (order one entries) the bordered matrix is
+
+    [ s S     -s B ]        S = K + j w M,  D = G / (j w)  (D = 0 at 0 Hz)
+    [ -s B^T   s D ]
+
+Its sparse LU, with the conductor unknowns ordered last, holds the Schur
+complement over the per-conductor current constraints in its trailing block:
+Sigma = L22 U22 = s (D - B^T S^-1 B), so that the conductor admittance per
+metre is Y = G - j w B^T S^-1 B = j w Sigma / s and the impedance matrix Z =
+Y^-1 (at 0 Hz Y = G and B^T S^-1 B = -Sigma / s).  No solve per conductor is
+needed: the field of a set of voltages costs one solve.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
-import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 from threadpoolctl import threadpool_limits
 
 
-@dataclass
-class Response:
-    """Field response at one angular frequency.
-
-    ``admittance`` (Nc, Nc) S*m; ``potential_per_volt`` (n, Nc) potentials per
-    unit conductor voltage per metre; ``applied`` (n,) potential for the
-    applied field with u = 0 (zeros when there is none); ``applied_current``
-    (Nc,) the currents that field drives with u = 0; ``flux_coupling``
-    (Nc, Nc) B^T X, so that admittance = G - j omega B^T X (kept for the
-    inductance at 0 Hz: L = G^-1 B^T X G^-1 per metre).
-    """
-
-    omega: float
-    admittance: np.ndarray
-    potential_per_volt: np.ndarray
-    applied: np.ndarray
-    applied_current: np.ndarray
-    flux_coupling: np.ndarray
-
-    def voltages(self, currents: np.ndarray) -> np.ndarray:
-        """Conductor voltages per metre (V/m) that carry ``currents`` (A)."""
-        return np.linalg.solve(self.admittance, np.asarray(currents, dtype=complex) - self.applied_current)
-
-    def potential(self, voltages: np.ndarray) -> np.ndarray:
-        """Vector potential (Wb/m) at the free nodes for conductor voltages ``voltages``."""
-        return self.potential_per_volt @ voltages + self.applied
-
-
-def respond(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
-            conductance: np.ndarray, omega: float,
-            applied_rhs: np.ndarray | None = None) -> Response:
-    """Factorize K + j omega M once and solve for all conductors at once.
-
-    All matrices are restricted to the free nodes already.  ``coupling`` is B
-    (n, Nc), ``conductance`` the diagonal of G (S*m).
-    """
-    # K has entries of order 1/mu0 ~ 1e6: scale matrix and right-hand side
-    # alike to order one (the solution is unchanged)
-    scale = 1.0 / max(abs(stiffness).max(), 1e-300)
-    system = (scale * stiffness + (1j * omega * scale) * mass).tocsc()
-    n, nc = coupling.shape
-    rhs = np.empty((n, nc + 1), dtype=complex)
-    rhs[:, :nc] = coupling.toarray()
-    rhs[:, nc] = 0.0 if applied_rhs is None else applied_rhs
+def _factorize(matrix: sp.spmatrix):
+    """SuperLU of ``matrix`` (already in its fill-reducing order), no pivoting
+    (the matrix is complex symmetric with definite real and imaginary parts)."""
     # the sparse LU calls BLAS on small dense blocks: extra BLAS threads only
     # contend (and slow it down many times on a busy machine)
     with threadpool_limits(limits=1, user_api="blas"):
-        lu = spla.splu(system, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
-                       options={"SymmetricMode": True})
-        solution = lu.solve(scale * rhs)
-    per_volt, applied = solution[:, :nc], solution[:, nc]
-    bt = coupling.T.tocsr()
-    flux_coupling = bt @ per_volt
-    admittance = np.diag(conductance).astype(complex) - 1j * omega * flux_coupling
-    applied_current = -1j * omega * (bt @ applied)
-    return Response(omega, admittance, per_volt, applied, applied_current, flux_coupling)
+        return spla.splu(matrix.tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0, relax=5,
+                         panel_size=12, options={"SymmetricMode": True})
+
+
+def _aligned(parts: list[sp.coo_matrix], size: int) -> tuple[np.ndarray, np.ndarray, list[np.ndarray]]:
+    """CSC pattern (indptr, indices) of the union of ``parts`` (size x size)
+    and every part's values on it (duplicates summed)."""
+    rows = np.concatenate([p.row for p in parts])
+    cols = np.concatenate([p.col for p in parts])
+    offsets = np.cumsum([0] + [p.nnz for p in parts])
+    values = []
+    for k, p in enumerate(parts):
+        data = np.zeros(len(rows))
+        data[offsets[k]:offsets[k + 1]] = p.data
+        # explicit zeros are kept, so every part lands on the same pattern
+        matrix = sp.coo_matrix((data, (rows, cols)), shape=(size, size)).tocsc()
+        matrix.sum_duplicates()
+        values.append(matrix.data)
+    return matrix.indptr, matrix.indices, values
+
+
+class BorderedSystem:
+    """The bordered matrix of one window (see the module docstring) in its
+    fill-reducing order, assembled once: at every frequency only its values
+    change, s (K + j w M) in the field block and s G / (j w) on the conductor
+    diagonal."""
+
+    def __init__(self, stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
+                 conductance: np.ndarray, ordering: np.ndarray | None = None) -> None:
+        n, nc = coupling.shape
+        self.n, self.nc = n, nc
+        # K has entries of order 1/mu0 ~ 1e6: scale to order one (the solution is unchanged)
+        self.scale = s = 1.0 / max(abs(stiffness).max(), 1e-300)
+        ordering = np.arange(n) if ordering is None else np.asarray(ordering)
+        self.order = np.concatenate([ordering, n + np.arange(nc)])
+        position = np.empty_like(self.order)
+        position[self.order] = np.arange(n + nc)
+        size = n + nc
+
+        def placed(matrix: sp.spmatrix, row0: int = 0, col0: int = 0) -> sp.coo_matrix:
+            m = sp.coo_matrix(matrix)
+            return sp.coo_matrix((m.data, (position[m.row + row0], position[m.col + col0])), shape=(size, size))
+
+        b = sp.coo_matrix(coupling)
+        field = [placed(s * stiffness), placed(-s * b, 0, n), placed(-s * b.T, n, 0)]
+        constant = sp.coo_matrix((np.concatenate([p.data for p in field]),
+                                  (np.concatenate([p.row for p in field]), np.concatenate([p.col for p in field]))),
+                                 shape=(size, size))
+        parts = [constant, placed(s * mass), placed(sp.diags(s * np.asarray(conductance, dtype=float)), n, n)]
+        self.indptr, self.indices, (self.constant, self.per_omega, self.per_inverse_omega) = _aligned(parts, size)
+
+    def factorize(self, omega: float) -> "BorderedFactorization":
+        """The LU at ``omega`` (rad/s); at 0 Hz the conductor diagonal is zero."""
+        data = self.constant + (1j * omega) * self.per_omega
+        if omega > 0.0:
+            data = data + self.per_inverse_omega / (1j * omega)
+        size = self.n + self.nc
+        matrix = sp.csc_matrix((data, self.indices, self.indptr), shape=(size, size))
+        return BorderedFactorization(self, omega, _factorize(matrix))
+
+
+class BorderedFactorization:
+    """The LU of the bordered matrix at one angular frequency; ``solve(r1,
+    r2)`` returns (a, v) of
+
+        s S a - s B v = r1,   -s B^T a + s D v = r2,
+
+    and ``schur`` is Sigma = s (D - B^T S^-1 B) (Nc, Nc) in conductor order."""
+
+    def __init__(self, system: BorderedSystem, omega: float, lu) -> None:
+        self.n, self.nc, self.scale, self.order = system.n, system.nc, system.scale, system.order
+        self.omega = omega
+        self.lu = lu
+
+    @cached_property
+    def schur(self) -> np.ndarray:
+        """Sigma from the trailing block of the factors (no solves)."""
+        n, nc, lu = self.n, self.nc, self.lu
+        # SuperLU postorders the columns; the conductor unknowns stay last
+        # when the field part is connected (they are ancestors of all of it)
+        tail_r, tail_c = lu.perm_r[n:], lu.perm_c[n:]
+        if (tail_r >= n).all() and (tail_c >= n).all():
+            u22 = lu.U[n:, n:].toarray()
+            if np.array_equal(lu.perm_r, lu.perm_c):
+                # symmetric matrix, no pivoting: L = U^T diag(U)^-1
+                block = u22.T @ (u22 / np.diag(u22)[:, None])
+            else:
+                block = lu.L[n:, n:].toarray() @ u22
+            return block[np.ix_(tail_r - n, tail_c - n)]
+        # general case: Sigma^-1 from nc solves
+        rhs = np.zeros((n + nc, nc), dtype=complex)
+        rhs[n:] = np.eye(nc)
+        return np.linalg.inv(self._raw_solve(rhs)[n:])
+
+    def _raw_solve(self, rhs: np.ndarray) -> np.ndarray:
+        with threadpool_limits(limits=1, user_api="blas"):
+            z = self.lu.solve(np.ascontiguousarray(rhs[self.order]))
+        out = np.empty_like(z)
+        out[self.order] = z
+        return out
+
+    def solve(self, r1: np.ndarray, r2: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(a, v) for right-hand sides ``r1`` (n, ...) and ``r2`` (Nc, ...)."""
+        z = self._raw_solve(np.concatenate([np.asarray(r1, dtype=complex), np.asarray(r2, dtype=complex)]))
+        return z[:self.n], z[self.n:]
+
+
+class Response:
+    """Field response at one angular frequency.
+
+    ``admittance`` (Nc, Nc) S*m; ``applied_current`` (Nc,) the currents an
+    applied field drives with u = 0 (zeros when there is none);
+    ``flux_coupling`` (Nc, Nc) B^T S^-1 B at 0 Hz only (L = G^-1 B^T K^-1 B
+    G^-1 per metre), else None.
+    """
+
+    def __init__(self, factorization: BorderedFactorization, applied_rhs: np.ndarray | None = None,
+                 conductance: np.ndarray | None = None) -> None:
+        f = factorization
+        self.factorization = f
+        self.omega = f.omega
+        self.applied_rhs = applied_rhs
+        if f.omega > 0.0:
+            self.admittance = (1j * f.omega / f.scale) * f.schur
+            self.flux_coupling = None
+        else:
+            self.admittance = np.diag(conductance).astype(complex)
+            self.flux_coupling = -f.schur / f.scale
+        nc = f.nc
+        self._applied_volts = np.zeros(nc, dtype=complex)
+        self.applied_current = np.zeros(nc, dtype=complex)
+        if applied_rhs is not None:
+            # [s F; 0] gives v0 = Sigma^-1 s B^T S^-1 F: the driven current -j w B^T S^-1 F
+            _, v0 = f.solve(f.scale * applied_rhs, np.zeros(nc))
+            self._applied_volts = v0
+            self.applied_current = -1j * f.omega * (f.schur @ v0) / f.scale
+
+    def voltages(self, currents: np.ndarray) -> np.ndarray:
+        """Conductor voltages per metre (V/m) that carry ``currents`` (Nc,) or (Nc, k) A."""
+        i = np.asarray(currents, dtype=complex)
+        driven = self.applied_current if i.ndim == 1 else self.applied_current[:, None]
+        return np.linalg.solve(self.admittance, i - driven)
+
+    def field(self, currents: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(voltages V/m, potential Wb/m at the free nodes) that carry conductor
+        ``currents`` (Nc,) or (Nc, k) A, from one solve with the currents
+        imposed (no round trip through the impedance matrix, whose large
+        common-mode entries near a high-permeability core would leave an
+        unbalanced rounding current)."""
+        f = self.factorization
+        i = np.asarray(currents, dtype=complex)
+        if f.omega == 0.0:
+            voltages = self.voltages(i)
+            return voltages, self.potential(voltages)
+        r1 = np.zeros((f.n,) + i.shape[1:], dtype=complex)
+        if self.applied_rhs is not None:
+            r1 += f.scale * (self.applied_rhs if i.ndim == 1 else self.applied_rhs[:, None])
+        a, v = f.solve(r1, f.scale * i / (1j * f.omega))
+        return v, a
+
+    def potential(self, voltages: np.ndarray) -> np.ndarray:
+        """Vector potential (Wb/m) at the free nodes for conductor ``voltages``
+        (Nc,) or (Nc, k): a = S^-1 (F + B u), one solve per column."""
+        f = self.factorization
+        u = np.asarray(voltages, dtype=complex)
+        v0 = self._applied_volts if u.ndim == 1 else self._applied_volts[:, None]
+        r1 = np.zeros((f.n,) + u.shape[1:], dtype=complex)
+        if self.applied_rhs is not None:
+            r1 += f.scale * (self.applied_rhs if u.ndim == 1 else self.applied_rhs[:, None])
+        a, _ = f.solve(r1, f.schur @ (u - v0))
+        return a
+
+
+def respond(system: BorderedSystem, omega: float, conductance: np.ndarray,
+            applied_rhs: np.ndarray | None = None) -> Response:
+    """Factorize the bordered system once at ``omega`` (rad/s); the response
+    serves every conductor.  ``conductance`` is the diagonal of G (S*m),
+    ``applied_rhs`` the load of an applied field on the free nodes."""
+    return Response(system.factorize(omega), applied_rhs, conductance)
 
 
 @dataclass
@@ -98,7 +236,7 @@ class StrandedResponse:
 
 def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
                      conductance: np.ndarray, resistance: np.ndarray, stranded: np.ndarray,
-                     omega: float) -> StrandedResponse:
+                     omega: float, ordering: np.ndarray | None = None) -> StrandedResponse:
     """One factorization of S = K(omega) + j omega M for solid conductors (voltage
     u_s unknown, B_s = int sigma phi) and stranded ones (current I_t imposed,
     B_t = (1/A_t) int phi, skin resistance ``resistance`` R_t ohm/m):
@@ -112,10 +250,11 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
     """
     scale = 1.0 / max(abs(stiffness).max(), 1e-300)
     system = (scale * stiffness + (1j * omega * scale) * mass).tocsc()
+    order = np.arange(system.shape[0]) if ordering is None else ordering
+    lu = _factorize(system[order][:, order])
     with threadpool_limits(limits=1, user_api="blas"):
-        lu = spla.splu(system, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
-                       options={"SymmetricMode": True})
-        x = lu.solve(scale * coupling.toarray().astype(complex))
+        x = np.empty((system.shape[0], coupling.shape[1]), dtype=complex)
+        x[order] = lu.solve(scale * coupling.toarray().astype(complex)[order])
     c = coupling.T.tocsr() @ x
     s = np.nonzero(~stranded)[0]
     t = np.nonzero(stranded)[0]
@@ -138,99 +277,3 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
         d = np.where(stranded, 1.0, 1.0 / np.where(stranded, 1.0, conductance))
         inductance = (d[:, None] * c.real) * d[None, :]
     return StrandedResponse(omega, z, per_current, inductance)
-
-
-class ReducedResponse(Response):
-    """A :class:`Response` from the reduced model: the potentials per volt are
-    V x (V the projection basis), formed only when asked for."""
-
-    def __init__(self, omega, admittance, basis, reduced, applied, applied_current, flux_coupling):
-        self.omega = omega
-        self.admittance = admittance
-        self._basis = basis
-        self._reduced = reduced
-        self.applied = applied
-        self.applied_current = applied_current
-        self.flux_coupling = flux_coupling
-
-    @property
-    def potential_per_volt(self) -> np.ndarray:
-        return self._basis @ self._reduced
-
-    def per_volt_times(self, voltages: np.ndarray) -> np.ndarray:
-        """(V x) @ voltages without forming V x."""
-        return self._basis @ (self._reduced @ voltages)
-
-
-def _per_volt_times(response: Response, voltages: np.ndarray) -> np.ndarray:
-    if isinstance(response, ReducedResponse):
-        return response.per_volt_times(voltages)
-    return response.potential_per_volt @ voltages
-
-
-class ReducedModel:
-    """Galerkin projection of K + j w M onto a real orthonormal basis V built
-    from full solves X(w_i) = S(w_i)^-1 B at expansion frequencies (multi-point
-    moment matching of order zero, one-sided Krylov projection as in Z. Bai,
-    "Krylov subspace techniques for reduced-order modeling of large-scale
-    dynamical systems", Applied Numerical Mathematics, 2002).  The system is
-    affine in w, so V^T K V and V^T M V are formed once; every frequency then
-    costs one small dense solve.  Real and imaginary parts of X enter V
-    apart, so the reduced matrices stay real symmetric.
-    """
-
-    def __init__(self, stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
-                 conductance: np.ndarray) -> None:
-        self.scale = 1.0 / max(abs(stiffness).max(), 1e-300)
-        self.stiffness = (self.scale * stiffness).tocsc()
-        self.mass = (self.scale * mass).tocsc()
-        self.coupling = coupling.tocsc()
-        self.b_dense = coupling.toarray()
-        self.conductance = np.asarray(conductance, dtype=float)
-        self.basis = np.zeros((coupling.shape[0], 0))
-        self.expansion_omegas: list[float] = []
-
-    def add(self, response: Response) -> None:
-        """Extend V with the real and imaginary parts of a full response's X."""
-        x = response.potential_per_volt
-        block = np.hstack([x.real, x.imag])
-        block /= np.maximum(np.linalg.norm(block, axis=0), 1e-300)
-        v = self.basis
-        for _ in range(2):  # block Gram-Schmidt, twice for orthogonality
-            if v.shape[1]:
-                block -= v @ (v.T @ block)
-        u, s, _ = np.linalg.svd(block, full_matrices=False)
-        keep = s > 1e-10 * max(s.max(initial=0.0), 1e-300) if s.size else s > 0
-        keep &= s > 1e-8
-        self.basis = np.hstack([v, u[:, keep]])
-        self.expansion_omegas.append(response.omega)
-        v = self.basis
-        self.k_r = v.T @ (self.stiffness @ v)
-        self.m_r = v.T @ (self.mass @ v)
-        self.b_r = v.T @ self.b_dense
-        self.bt_v = (self.coupling.T @ v)
-        # M_r q = lambda K_r q with Q^T K_r Q = I diagonalizes the pencil:
-        # (K_r + j w M_r)^-1 = Q (I + j w Lambda)^-1 Q^T, so a frequency costs O(r Nc)
-        try:
-            self.eig, q = scipy.linalg.eigh(self.m_r, self.k_r)
-            self.q = q
-            self.qtb = q.T @ (self.scale * self.b_r)
-        except np.linalg.LinAlgError:
-            self.eig = None
-
-    @property
-    def size(self) -> int:
-        return self.basis.shape[1]
-
-    def respond(self, omega: float) -> ReducedResponse:
-        """Reduced solve (V^T K V + j w V^T M V) x = V^T B; X ~ V x, Y = G - j w B^T X."""
-        if self.eig is not None:
-            x = self.q @ (self.qtb / (1.0 + 1j * omega * self.eig)[:, None])
-        else:
-            system = self.k_r + 1j * omega * self.m_r
-            x = np.linalg.solve(system, self.scale * self.b_r.astype(complex))
-        flux_coupling = self.bt_v @ x
-        nc = self.b_dense.shape[1]
-        admittance = np.diag(self.conductance).astype(complex) - 1j * omega * flux_coupling
-        return ReducedResponse(omega, admittance, self.basis, x, np.zeros(self.basis.shape[0], dtype=complex),
-                               np.zeros(nc, dtype=complex), flux_coupling)

@@ -15,19 +15,22 @@ average loss.  The ``_per_m`` names below read "per turn" in an axisymmetric mod
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 import scipy.sparse as sp
-from skfem import Basis, ElementTriP2, FacetBasis, Functional, MeshTri2
+from skfem import Basis, ElementTriP2, FacetBasis, MeshTri2
 
 from geometry.materials import MU0
 from geometry.mesher import CORE, WindowMesh
 
 from .forms import (applied_field_load, axisymmetric_conductivity_mass, axisymmetric_robin_mass,
                     axisymmetric_stiffness, conductivity_mass, reluctivity_stiffness, robin_mass)
-from .harmonic import (ReducedModel, Response, StrandedResponse, _per_volt_times, respond,
+from .harmonic import (BorderedFactorization, BorderedSystem, Response, StrandedResponse, respond,
                        respond_stranded)
 from .litz import bundle_reluctivity, bundle_resistance
+from .ordering import nested_dissection
+from .reduced import ReducedModel
 
 
 @dataclass
@@ -46,17 +49,6 @@ class FrequencySolution:
     voltage_per_m: np.ndarray
     loss_per_m: np.ndarray
     potential: np.ndarray | None = None
-
-
-@Functional
-def _ohmic_cross_density(w):
-    """sigma conj(e_i) e_j integrated over each element (W/m or W), e = E/sigma
-    = (voltage weight) u - j w A, times the volume weight; the voltage weight
-    is 1/(2 pi r) and the volume weight 2 pi r in axisymmetric models (1 in
-    planar ones); already folded into u_* and sigma by the caller."""
-    re_i, im_i = w.u_re_i + w.omega * w.a_im_i, w.u_im_i - w.omega * w.a_re_i
-    re_j, im_j = w.u_re_j + w.omega * w.a_im_j, w.u_im_j - w.omega * w.a_re_j
-    return w.sigma * (re_i * re_j + im_i * im_j) + 1j * w.sigma * (re_i * im_j - im_i * re_j)
 
 
 @dataclass
@@ -177,6 +169,17 @@ class WindowProblem:
         weighted = (self.voltage_weight * self.basis.dx).sum(axis=1)
         self.conductance = self.sigma_k * np.bincount(region[in_conductor], weights=weighted[in_conductor],
                                                       minlength=self.conductor_count)
+        # the ohmic loss is integrated at the quadrature points of the solid conductors
+        solid = np.nonzero(in_conductor & ~self.stranded[np.maximum(region, 0)])[0]
+        self.loss_elements = solid
+        # A at their quadrature points from the nodal values: a sparse (ne * nqp, nodes) map
+        phi = np.array([np.asarray(b[0])[solid] for b in self.basis.basis])          # (6, ne, nqp)
+        rows = np.broadcast_to(np.arange(phi.shape[1] * phi.shape[2]).reshape(phi.shape[1:]), phi.shape)
+        cols = np.broadcast_to(self.basis.element_dofs[:, solid][:, :, None], phi.shape)
+        self.loss_interpolation = sp.csr_matrix((phi.ravel(), (rows.ravel(), cols.ravel())),
+                                                shape=(phi.shape[1] * phi.shape[2], self.basis.N))
+        self.loss_voltage_weight = np.ascontiguousarray(self.voltage_weight[solid])
+        self.loss_weight = (self.sigma_qp * self.volume_weight * self.basis.dx)[solid]
         self.stiffness = stiffness[free][:, free].tocsc()
         self.mass = mass[free][:, free].tocsc()
         self.coupling = coupling[free]
@@ -195,6 +198,16 @@ class WindowProblem:
             resistance[k] = bundle_resistance(n, d, rho, omega)
         return nu, resistance
 
+    @cached_property
+    def ordering(self) -> np.ndarray:
+        """Nested dissection ordering of K + j w M on the free nodes (one per mesh)."""
+        return nested_dissection(self.stiffness, self.mass)
+
+    @cached_property
+    def bordered(self) -> BorderedSystem:
+        """The bordered matrix in its fill-reducing order (one per mesh)."""
+        return BorderedSystem(self.stiffness, self.mass, self.coupling, self.conductance, self.ordering)
+
     def respond_stranded(self, frequency: float) -> StrandedResponse:
         """Factorize K(omega) + j omega M, K(omega) = K0 + sum (nu_eff - nu0) K_region,
         and return the full conductor impedance matrix (solid and stranded)."""
@@ -203,7 +216,7 @@ class WindowProblem:
         for k, m in self.region_stiffness_free.items():
             stiffness = stiffness + (nu[k] - 1.0 / MU0) * m
         return respond_stranded(stiffness, self.mass, self.coupling, self.conductance, resistance,
-                                self.stranded, 2.0 * np.pi * frequency)
+                                self.stranded, 2.0 * np.pi * frequency, self.ordering)
 
     @property
     def unknowns(self) -> int:
@@ -226,8 +239,11 @@ class WindowProblem:
 
     def respond(self, frequency: float, applied_rhs: np.ndarray | None = None) -> Response:
         """Factorize at ``frequency`` (Hz) and return the all-conductor response."""
-        return respond(self.stiffness, self.mass, self.coupling, self.conductance,
-                       2.0 * np.pi * frequency, applied_rhs)
+        return respond(self.bordered, 2.0 * np.pi * frequency, self.conductance, applied_rhs)
+
+    def factorize(self, frequency: float) -> BorderedFactorization:
+        """The bordered system's LU at ``frequency`` (Hz), e.g. for moments."""
+        return self.bordered.factorize(2.0 * np.pi * frequency)
 
     def reduced_model(self) -> ReducedModel:
         """An empty reduced model of this window (solid conductors only)."""
@@ -244,9 +260,8 @@ class WindowProblem:
         rhs = None if b_applied is None else self.applied_field_rhs(b_applied)
         response = self.respond(frequency, rhs)
         currents = np.asarray(currents, dtype=complex)
-        voltages = response.voltages(currents)
         potential = np.zeros(self.basis.N, dtype=complex)
-        potential[self.free] = response.potential(voltages)
+        voltages, potential[self.free] = response.field(currents)
         loss = self.conductor_losses(frequency, voltages, potential)
         impedance = np.linalg.inv(response.admittance)
         return FrequencySolution(frequency, impedance, currents, voltages, loss,
@@ -259,31 +274,34 @@ class WindowProblem:
     def loss_matrices(self, frequency: float, voltages: np.ndarray, potentials: np.ndarray) -> np.ndarray:
         """Loss cross terms of ``Ne`` excitations: ``voltages`` (Nc, Ne) V/m and
         ``potentials`` (nodes, Ne) Wb/m give Q (Nc, Ne, Ne), Q_k[i, j] =
-        int_k sigma conj(e_i) e_j dx (W/m per unit^2), Hermitian."""
+        int_k sigma conj(e_i) e_j dx (W/m per unit^2), Hermitian, for solid
+        conductors (zero for homogenized bundles).  e = E / sigma = u w - j
+        omega A is formed at the quadrature points (w the voltage weight,
+        1/(2 pi r) in axisymmetric models), never expanded: u w and j omega A
+        nearly cancel in a strongly inductive conductor."""
         omega = 2.0 * np.pi * frequency
-        mask = self.region >= 0
-        nqp = self.basis.X.shape[1]
-        count = voltages.shape[1]
-        fields = []
+        elements = self.loss_elements
+        k = self.region[elements]
+        potentials = np.asarray(potentials, dtype=complex)
+        shape = self.loss_weight.shape
+        u = np.asarray(voltages, dtype=complex)[k]                                     # (ne, Ne)
+        count = u.shape[1]
+        both = self.loss_interpolation @ np.hstack([potentials.real, potentials.imag])
+        a_qp = both[:, :count] + 1j * both[:, count:]
+        e = [u[:, n, None] * self.loss_voltage_weight - 1j * omega * a_qp[:, n].reshape(shape)
+             for n in range(count)]
+        per_element = np.empty((len(elements), count, count), dtype=complex)
         for i in range(count):
-            u_e = np.where(mask, voltages[np.maximum(self.region, 0), i], 0.0)
-            u_qp = np.repeat(u_e[:, None], nqp, axis=1) * self.voltage_weight
-            fields.append((u_qp.real, u_qp.imag, self.basis.interpolate(potentials[:, i].real),
-                           self.basis.interpolate(potentials[:, i].imag)))
-        out = np.zeros((self.conductor_count, count, count), dtype=complex)
-        for i in range(count):
+            weighted = e[i].conj() * self.loss_weight
             for j in range(i, count):
-                fi, fj = fields[i], fields[j]
-                per_element = _ohmic_cross_density.elemental(
-                    self.basis, sigma=self.sigma_qp * self.volume_weight, omega=omega,
-                    u_re_i=fi[0], u_im_i=fi[1], a_re_i=fi[2], a_im_i=fi[3],
-                    u_re_j=fj[0], u_im_j=fj[1], a_re_j=fj[2], a_im_j=fj[3])
-                k = self.region[mask]
-                value = (np.bincount(k, weights=per_element[mask].real, minlength=self.conductor_count)
-                         + 1j * np.bincount(k, weights=per_element[mask].imag, minlength=self.conductor_count))
-                out[:, i, j] = value
-                out[:, j, i] = value.conj()
-        return out
+                per_element[:, i, j] = (weighted * e[j]).sum(axis=1)
+                per_element[:, j, i] = per_element[:, i, j].conj()
+        flat = per_element.reshape(len(elements), count * count)
+        out = np.empty((self.conductor_count, count * count), dtype=complex)
+        for column in range(count * count):
+            out[:, column] = (np.bincount(k, flat[:, column].real, self.conductor_count)
+                              + 1j * np.bincount(k, flat[:, column].imag, self.conductor_count))
+        return out.reshape(self.conductor_count, count, count)
 
     def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents,
                        keep_field: bool = False, response: Response | None = None) -> WindingSolution:
@@ -305,9 +323,8 @@ class WindowProblem:
         else:
             g_inv = 1.0 / self.conductance
             inductance = (g_inv[:, None] * response.flux_coupling.real) * g_inv[None, :]
-        unit_voltages = impedance @ connection
         unit_potentials = np.zeros((self.basis.N, connection.shape[1]), dtype=complex)
-        unit_potentials[self.free] = _per_volt_times(response, unit_voltages)
+        unit_voltages, unit_potentials[self.free] = response.field(connection)
         q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
         if callable(winding_currents):
             winding_currents = winding_currents(connection.T @ impedance @ connection)
@@ -358,3 +375,4 @@ class WindowProblem:
             bundle = self.stranded[k]
             j[dofs[:, bundle]] = (np.asarray(currents)[k[bundle]] / self.areas[k[bundle]])[None, :]
         return j
+

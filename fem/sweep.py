@@ -18,6 +18,7 @@ from geometry.mesher import MeshSizing, WindowMesh, build_mesh
 from .mmf import MmfProfile, mmf_profile
 from .parallel import Excitation, excitation_basis, sharing
 from .problem import WindowProblem
+from .reduced import moment_vectors
 
 
 @dataclass
@@ -79,27 +80,41 @@ class SweepResult:
 
 #: sweeps with more frequencies than this use the reduced model by default
 REDUCED_MIN_FREQUENCIES = 8
-#: stop adding expansion points when the reduced diag Z changes less than this
+#: stop adding expansion points when the reduced column impedances with one moment
+#: fewer per point differ less than this
 REDUCED_TOLERANCE = 1e-6
 REDUCED_START_POINTS = 3
 REDUCED_MAX_POINTS = 10
+#: moments per expansion point (one factorization serves them all)
+REDUCED_MOMENTS = 4
 
 
-def _diag_z(model, omega: float) -> np.ndarray:
-    return np.diag(np.linalg.inv(model.respond(omega).admittance))
+def column_impedances(response, connection: np.ndarray) -> np.ndarray:
+    """E^T Z E (Ne, Ne) ohm/m: the impedance matrix of the excitation columns."""
+    return connection.T @ np.linalg.solve(response.admittance, connection)
 
 
-def reduced_plan(problem: WindowProblem, freqs: np.ndarray, tolerance: float = REDUCED_TOLERANCE,
-                 start: int = REDUCED_START_POINTS, most: int = REDUCED_MAX_POINTS):
-    """Build the reduced model of ``problem`` for the requested ``freqs`` (Hz, > 0).
+def _relative_change(new: np.ndarray, old: np.ndarray) -> np.ndarray:
+    """Largest |change| of each column impedance matrix over sqrt(R_aa R_bb)."""
+    r = np.abs(np.diagonal(new.real, axis1=1, axis2=2))
+    scale = np.sqrt(r[:, :, None] * r[:, None, :])
+    return np.max(np.abs(new - old) / np.maximum(scale, 1e-300), axis=(1, 2))
+
+
+def reduced_plan(problem: WindowProblem, freqs: np.ndarray, connection: np.ndarray,
+                 tolerance: float = REDUCED_TOLERANCE, start: int = REDUCED_START_POINTS,
+                 most: int = REDUCED_MAX_POINTS, moments: int = REDUCED_MOMENTS):
+    """Build the reduced model of ``problem`` for the requested ``freqs`` (Hz,
+    > 0) and the excitation columns ``connection`` (Nc, Ne).
 
     Expansion points start at ``start`` requested frequencies spread
-    log-uniformly over the band; then the requested frequency where the
-    reduced conductor impedances (diag Z) changed most between the last two
-    bases is added, until that change is below ``tolerance`` (relative) or
-    ``most`` points are used.  Returns (model, expansion indices, last change
-    per frequency)."""
-    model = problem.reduced_model()
+    log-uniformly over the band, each contributing ``moments`` moments of the
+    column excitations from one factorization.  A second model keeps one
+    moment fewer at every point; where the two disagree most, relative to the
+    column resistances, the next expansion point goes, until they agree
+    within ``tolerance`` everywhere or ``most`` points are used.  Returns
+    (model, expansion indices, estimated change per frequency)."""
+    model, lower = problem.reduced_model(), problem.reduced_model()
     logf = np.log(freqs)
     targets = np.linspace(logf.min(), logf.max(), min(start, len(freqs)))
     chosen: list[int] = []
@@ -107,21 +122,28 @@ def reduced_plan(problem: WindowProblem, freqs: np.ndarray, tolerance: float = R
         order = np.argsort(np.abs(logf - t))
         chosen.append(int(next(i for i in order if i not in chosen)))
     omegas = 2.0 * np.pi * freqs
-    for i in chosen[:-1]:
-        model.add(problem.respond(freqs[i]))
-    # first estimate: the basis without its last starting point against the full one
-    previous = np.array([_diag_z(model, w) for w in omegas])
-    model.add(problem.respond(freqs[chosen[-1]]))
+    columns = connection.shape[1]
+
+    def expand(index: int) -> None:
+        factorization = problem.factorize(freqs[index])
+        vectors = moment_vectors(factorization, problem.mass, problem.coupling, connection, moments)
+        model.extend(vectors, omegas[index])
+        lower.extend(vectors[:, :(moments - 1) * columns], omegas[index])
+
+    def impedances(reduced) -> np.ndarray:
+        return np.array([column_impedances(reduced.respond(w), connection) for w in omegas])
+
+    for i in chosen:
+        expand(i)
     while True:
-        current = np.array([_diag_z(model, w) for w in omegas])
-        change = np.max(np.abs(current - previous) / np.maximum(np.abs(current.real), 1e-300), axis=1)
-        change[chosen] = 0.0
-        previous = current
+        change = _relative_change(impedances(model), impedances(lower))
         if change.max() < tolerance or len(chosen) >= min(most, len(freqs)):
             break
-        nxt = int(np.argmax(change))
-        chosen.append(nxt)
-        model.add(problem.respond(freqs[nxt]))
+        candidates = [i for i in np.argsort(-change) if int(i) not in chosen]
+        if not candidates:
+            break
+        chosen.append(int(candidates[0]))
+        expand(chosen[-1])
     return model, chosen, change
 
 
@@ -181,6 +203,11 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     start = time.perf_counter()
     problem = problem_for(case, window_mesh, rho, conductors)
     timings["assembly_s"] = time.perf_counter() - start
+    start = time.perf_counter()
+    problem.ordering    # one nested dissection serves every factorization of the sweep
+    if not problem.stranded.any():
+        problem.bordered
+    timings["ordering_s"] = time.perf_counter() - start
 
     names = [w.name for w in case.windings]
     excitation = excitation_basis(case, conductors)
@@ -206,10 +233,11 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     model = None
     sweep_info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
     if use_reduced(case, conductors, method):
-        model, chosen, change = reduced_plan(problem, freqs)
+        model, chosen, change = reduced_plan(problem, freqs, connection)
         sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
                       "max_check_deviation": None, "reduced_size": model.size}
         timings["reduced_build_s"] = time.perf_counter() - start
+    points_start = time.perf_counter()
     for i, f in enumerate(freqs):
         last = i == nf - 1
         response = model.respond(2.0 * np.pi * f) if model is not None else None
@@ -233,6 +261,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         if progress:
             progress(i + 1, nf, f)
     if model is not None:
+        timings["reduced_points_s"] = time.perf_counter() - points_start
         # self-check: full solves at the two non-expansion frequencies of largest estimated change
         check_start = time.perf_counter()
         order = [int(i) for i in np.argsort(-change) if int(i) not in chosen][:2]
@@ -245,8 +274,10 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
             ok = np.abs(exact_w) > 0
             if ok.any():
                 deviation = max(deviation, float(np.max(np.abs(reduced_w[ok] / exact_w[ok] - 1.0))))
-            rz_full = np.diag(full.impedance_per_m).real
-            rz_red = np.diag(impedance[i]).real
+            # column resistances (the conductor matrix of a reduced model is
+            # exact only for currents the excitation columns can carry)
+            rz_full = np.diag(connection.T @ full.impedance_per_m @ connection).real
+            rz_red = np.diag(connection.T @ impedance[i] @ connection).real
             deviation = max(deviation, float(np.max(np.abs(rz_red / rz_full - 1.0))))
         sweep_info["check_hz"] = [float(freqs[i]) for i in order]
         sweep_info["max_check_deviation"] = deviation

@@ -1,19 +1,20 @@
 """racfield benchmark: the reference case (reference_case.toml), point-by-point
-against the reduced-order sweep.
+against the reduced-order sweep, both through the sweep the command line runs.
 
 Run from the repository root:
 
-    python tests/benchmarks/run_benchmark.py [--exact-points N]
+    python tests/benchmarks/run_benchmark.py [--case FILE] [--skip-exact]
 
-``--exact-points N`` solves only N of the 100 frequencies point-by-point (spread
-over the band) and extrapolates the point-by-point sweep time to all of them;
-the reduced sweep is compared with point-by-point at those N frequencies.
-This is a script, not a test (pytest does not collect it).
+Each sweep runs end to end from the loaded case (placing, meshing, assembly,
+ordering, solves, losses; the reduced one also its basis and self-check).
+``--skip-exact`` runs the reduced sweep only (no deviation then).  This is a
+script, not a test (pytest does not collect it).
 """
 
 from __future__ import annotations
 
 import argparse
+import platform
 import resource
 import sys
 import time
@@ -21,78 +22,64 @@ from pathlib import Path
 
 import numpy as np
 
-from fem.parallel import excitation_basis, sharing
-from fem.sweep import conductor_resistivities, mesh_case, problem_for, reduced_plan
+from fem.sweep import run_sweep
 from geometry.case import load_case
-from geometry.layout import place
 
 HERE = Path(__file__).resolve().parent
+
+
+def _timed_sweep(case_path: str, method: str):
+    case = load_case(case_path)
+    start = time.perf_counter()
+    sweep = run_sweep(case, method=method)
+    return sweep, time.perf_counter() - start
+
+
+def _winding_rac_over_rdc(sweep) -> np.ndarray:
+    """(Nf, Nw) winding loss over its DC loss at the same current."""
+    members = sweep.excitation.membership
+    loss = sweep.loss_per_m @ members
+    dc = (np.abs(sweep.currents) ** 2 * sweep.rdc_per_m) @ members
+    return loss / dc
 
 
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--case", default=str(HERE / "reference_case.toml"))
-    parser.add_argument("--exact-points", type=int, default=0,
-                        help="point-by-point at this many frequencies only (0: all)")
+    parser.add_argument("--skip-exact", action="store_true", help="run the reduced sweep only")
     args = parser.parse_args(argv)
-    case = load_case(args.case)
-    freqs = np.array(case.frequencies)
 
-    start = time.perf_counter()
-    conductors = place(case)
-    rho = conductor_resistivities(case, conductors)
-    window_mesh = mesh_case(case, conductors)
-    mesh_s = time.perf_counter() - start
-    start = time.perf_counter()
-    problem = problem_for(case, window_mesh, rho, conductors)
-    assembly_s = time.perf_counter() - start
-
-    excitation = excitation_basis(case, conductors)
-    connection = excitation.basis
-    winding_currents = np.array([w.phasor for w in case.windings], dtype=complex)
-
-    def share(z_basis):
-        return sharing(z_basis, excitation.windings) @ winding_currents
-
-    def winding_loss(solution):
-        return excitation.membership.T @ solution.loss_per_m
-
-    if args.exact_points and args.exact_points < len(freqs):
-        exact_index = np.unique(np.round(np.linspace(0, len(freqs) - 1, args.exact_points)).astype(int))
-    else:
-        exact_index = np.arange(len(freqs))
-    start = time.perf_counter()
-    exact = {int(i): winding_loss(problem.solve_windings(freqs[i], connection, share)) for i in exact_index}
-    exact_s = time.perf_counter() - start
-    per_point_s = exact_s / len(exact_index)
-    exact_sweep_s = per_point_s * len(freqs)
-
-    start = time.perf_counter()
-    model, chosen, _ = reduced_plan(problem, freqs)
-    build_s = time.perf_counter() - start
-    reduced = {}
-    for i, f in enumerate(freqs):
-        reduced[i] = winding_loss(problem.solve_windings(f, connection, share,
-                                                         response=model.respond(2.0 * np.pi * f)))
-    reduced_s = time.perf_counter() - start
-    # Rac/Rdc of a winding is its loss over |I|^2 Rdc: the ratio deviation is the loss deviation
-    deviation = max(float(np.max(np.abs(reduced[i] / exact[i] - 1.0))) for i in exact)
-
+    reduced, reduced_s = _timed_sweep(args.case, "reduced")
+    exact, exact_s = (None, None) if args.skip_exact else _timed_sweep(args.case, "exact")
     peak_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
-    print(f"case: {case.title}")
-    print(f"frequencies: {len(freqs)} ({freqs[0]:g} Hz to {freqs[-1]:g} Hz)")
-    print(f"unknowns: {problem.unknowns}  elements: {window_mesh.elements}")
-    print(f"mesh time: {mesh_s:.2f} s")
-    print(f"assembly time: {assembly_s:.2f} s")
-    print(f"time per full frequency point: {per_point_s:.3f} s")
-    note = "" if len(exact_index) == len(freqs) else f" (extrapolated from {len(exact_index)} points)"
-    print(f"point-by-point sweep, {len(freqs)} points: {exact_sweep_s:.1f} s{note}")
-    print(f"reduced sweep, {len(freqs)} points: {reduced_s:.1f} s "
-          f"(basis {build_s:.1f} s: {len(chosen)} expansion points, reduced size {model.size})")
-    print(f"expansion frequencies (Hz): {', '.join(f'{freqs[i]:.4g}' for i in sorted(chosen))}")
-    print(f"peak memory (max RSS): {peak_mb:.0f} MB")
-    print(f"largest winding Rac/Rdc deviation, reduced vs point-by-point "
-          f"({len(exact)} frequencies): {deviation:.2e}")
+
+    t = reduced.timings
+    nf = len(reduced.frequencies)
+    info = reduced.sweep_info
+    print(f"case: {load_case(args.case).title}")
+    print(f"machine: {platform.machine()}, {platform.system()}, python {platform.python_version()}")
+    print(f"frequencies: {nf} ({reduced.frequencies[0]:g} Hz to {reduced.frequencies[-1]:g} Hz)")
+    print(f"unknowns: {reduced.unknowns}  elements: {reduced.elements}")
+    print(f"mesh time: {t['mesh_s']:.2f} s")
+    print(f"assembly time: {t['assembly_s']:.2f} s")
+    print(f"fill-reducing ordering (once per mesh): {t['ordering_s']:.2f} s")
+    if exact is not None:
+        per_point = exact.timings["solve_s"] / nf
+        print(f"time per full frequency point (factorization, all {len(reduced.conductors)} conductors, "
+              f"field, loss matrices): {per_point:.3f} s")
+        print(f"point-by-point sweep, {nf} points, end to end: {exact_s:.1f} s")
+    print(f"reduced sweep, {nf} points, end to end: {reduced_s:.1f} s")
+    print(f"  basis: {t['reduced_build_s']:.2f} s ({len(info['expansion_hz'])} expansion points, "
+          f"reduced size {info['reduced_size']})")
+    print(f"  reduced points: {t['reduced_points_s']:.2f} s ({1e3 * t['reduced_points_s'] / nf:.1f} ms each)")
+    print(f"  self-check, 2 full points: {t['reduced_check_s']:.2f} s "
+          f"(largest deviation {info['max_check_deviation']:.2e})")
+    print(f"expansion frequencies (Hz): {', '.join(f'{f:.4g}' for f in info['expansion_hz'])}")
+    print(f"peak memory (max RSS, both sweeps): {peak_mb:.0f} MB")
+    if exact is not None:
+        deviation = float(np.max(np.abs(_winding_rac_over_rdc(reduced) / _winding_rac_over_rdc(exact) - 1.0)))
+        print(f"largest winding Rac/Rdc deviation, reduced vs point-by-point ({nf} frequencies): "
+              f"{deviation:.2e}")
     return 0
 
 

@@ -19,7 +19,7 @@ import numpy as np
 
 from .errors import CaseError
 from .materials import MATERIALS, ALIASES
-from .units import EXAMPLES, quantity
+from .units import EXAMPLES, quantity, short
 from .waveform import (Spectrum, Waveform, WaveformSettings, fundamental_phasor, parse_settings,
                        parse_waveform, plan, sine_of, spectrum)
 
@@ -34,6 +34,9 @@ HEXAGONAL_PACKING = math.pi / (2.0 * math.sqrt(3.0))
 DEFAULT_PACKING = 0.6
 ALIGNS = ("centre", "start", "end", "spread")
 MAX_FREQUENCIES = 1000
+#: the largest count a case may give (turns, repeat, strands, conductors): far beyond any
+#: winding that can be meshed, and small enough that no count overflows a float
+MAX_COUNT = 100_000
 BASE_VARIANT = "base"  #: name of the case's own arrangement when it also lists variants
 
 
@@ -277,17 +280,21 @@ class _Table:
             raise CaseError(self.key(name), f'unknown value "{value}"', fix)
         return value
 
-    def integer(self, name: str, default: int | None = None, minimum: int = 1) -> int:
+    def integer(self, name: str, default: int | None = None, minimum: int = 1,
+                maximum: int = MAX_COUNT) -> int:
         value = self.raw(name, default, default is None)
         if isinstance(value, bool) or not isinstance(value, int):
             if isinstance(value, float) and value.is_integer():
                 value = int(value)
             else:
-                raise CaseError(self.key(name), f"expected a whole number, got {value!r}",
+                raise CaseError(self.key(name), f"expected a whole number, got {short(value)}",
                                 f"write {name} = {max(minimum, 1)} or another whole number")
         if value < minimum:
-            raise CaseError(self.key(name), f"must be at least {minimum}, got {value}",
+            raise CaseError(self.key(name), f"must be at least {minimum}, got {short(value)}",
                             f"give a whole number of {minimum} or more")
+        if value > maximum:
+            raise CaseError(self.key(name), f"must be at most {maximum}, got {short(value)}",
+                            f"give a whole number of {maximum} or less")
         return value
 
     def close(self) -> None:
@@ -780,13 +787,20 @@ def load_case(path: str | Path) -> Case:
         text = path.read_text(encoding="utf-8")
     except FileNotFoundError:
         raise CaseError("", "file not found", "check the path to the case file", name) from None
-    except (OSError, UnicodeDecodeError) as error:
-        raise CaseError("", f"cannot read the file ({error.__class__.__name__})",
+    except UnicodeDecodeError as error:
+        line = error.object[:error.start].count(b"\n") + 1
+        raise CaseError("", f"is not UTF-8 text: byte 0x{error.object[error.start]:02x} on line {line}",
+                        "save the case file as UTF-8", name) from None
+    except OSError as error:
+        raise CaseError("", f"cannot read the file ({error.strerror or error.__class__.__name__})",
                         "give a readable UTF-8 TOML file", name) from None
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise CaseError("", f"TOML syntax error: {error}", "fix the syntax at that line", name) from None
+    except ValueError as error:  # an integer of more than 4300 digits (Python's int/str limit)
+        raise CaseError("", f"TOML value cannot be read: {error.args[0].split(':')[0]}",
+                        "give numbers of ordinary size", name) from None
     case = parse_case(doc, name)
     try:
         for arrangement in variant_cases(case):

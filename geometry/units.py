@@ -34,6 +34,14 @@ EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "c
             "resistivity": '"1.72e-8 ohm*m"'}
 
 
+def short(value: object) -> str:
+    """``repr(value)`` for a one-line message; an integer beyond the float range
+    by its number of digits (Python refuses to print one of more than 4300)."""
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) > 10 ** 30:
+        return f"an integer of about {len(format(abs(value), 'x')) * math.log10(16):.0f} digits"
+    return repr(value)
+
+
 def _a(kind: str) -> str:
     return ("an " if kind[0] in "aeiou" else "a ") + kind
 
@@ -61,7 +69,11 @@ def quantity(value: object, kind: str, key: str) -> float:
         raise CaseError(key, f"expected {_a(kind)}, got {value!r}",
                         f"write a number in SI units or a string such as {EXAMPLES[kind]}")
     if isinstance(value, (int, float)):
-        number = float(value)
+        try:
+            number = float(value)
+        except OverflowError:  # an integer beyond the floating-point range
+            raise CaseError(key, f"{short(value)} is too large",
+                            f"give {_a(kind)} in SI units, such as {EXAMPLES[kind]}") from None
         if not math.isfinite(number):
             raise CaseError(key, f"{value!r} is not a finite number",
                             f"give a finite {kind}")

@@ -37,7 +37,7 @@ from typing import Iterable, Protocol
 import numpy as np
 
 from .errors import CaseError
-from .units import quantity
+from .units import quantity, short
 
 SHAPES = ("triangle", "trapezoid", "sine")
 DEFAULT_FRACTION = 0.995     #: share of the AC RMS^2 the solved harmonics must hold
@@ -64,7 +64,8 @@ class TableLike(Protocol):
                  positive: bool = False, nonnegative: bool = False) -> float: ...
     def text(self, name: str, default: str | None = None, choices: tuple[str, ...] = (),
              required: bool = False) -> str: ...
-    def integer(self, name: str, default: int | None = None, minimum: int = 1) -> int: ...
+    def integer(self, name: str, default: int | None = None, minimum: int = 1,
+                maximum: int = ...) -> int: ...
     def close(self) -> None: ...
 
 
@@ -263,7 +264,11 @@ def time_value(value: object, key: str) -> float:
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
         raise CaseError(key, f"expected a time, got {value!r}", f"write a number in s or a string such as {TIME_EXAMPLE}")
     if isinstance(value, (int, float)):
-        number = float(value)
+        try:
+            number = float(value)
+        except OverflowError:  # an integer beyond the floating-point range
+            raise CaseError(key, f"{short(value)} is too large",
+                            f"give a time in s or a string such as {TIME_EXAMPLE}") from None
     else:
         match = _TIME.match(value)
         if not match:
@@ -431,7 +436,8 @@ def read_samples(path: Path, name: str, key: str) -> list[tuple[float, float]]:
     points = []
     for line, row in rows[1:]:
         if len(row) != 2:
-            raise CaseError(key, f'"{name}" line {line}: {len(row)} columns', "give two columns: time in s, current in A")
+            raise CaseError(key, f'"{name}" line {line}: {len(row)} column{"" if len(row) == 1 else "s"}',
+                           "give two columns: time in s, current in A")
         try:
             t, i = float(row[0]), float(row[1])
         except ValueError:

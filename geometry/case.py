@@ -462,15 +462,19 @@ def _list_of_tables(doc: _Table, name: str) -> list[_Table]:
     return [_Table(item, f"{key}[{i + 1}]") for i, item in enumerate(items)]
 
 
-def parse_case(doc: dict, path: str = "") -> Case:
-    """Build a :class:`Case` from a parsed TOML document."""
+def parse_case(doc: dict, path: str = "", allow_outside_files: bool = False) -> Case:
+    """Build a :class:`Case` from a parsed TOML document.
+
+    ``path``: the case file (its folder is where files the case names are
+    found; the current folder without it).  ``allow_outside_files``: read such
+    files also when they lie outside that folder (refused by default)."""
     try:
-        return _parse(doc, path)
+        return _parse(doc, path, allow_outside_files)
     except CaseError as error:
         raise error.in_file(path) if path else error
 
 
-def _parse(doc: dict, path: str) -> Case:
+def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     top = _Table(doc, "")
     title = top.raw("title", Path(path).stem if path else "case")
     if not isinstance(title, str):
@@ -489,7 +493,7 @@ def _parse(doc: dict, path: str) -> Case:
             raise CaseError(t.key("name"), f'winding "{name}" is defined twice', "give each winding its own name")
         mat = t.text("material", "copper", tuple(MATERIALS) + tuple(ALIASES))
         mat = ALIASES.get(mat, mat)
-        waveform = _winding_waveform(t, settings, path)
+        waveform = _winding_waveform(t, settings, path, allow_outside_files)
         current = t.quantity("current", "current", 1.0, nonnegative=True)
         phase = t.quantity("phase", "angle", 0.0)
         t.close()
@@ -776,9 +780,11 @@ def _check_balance(case: Case, where: str = "") -> None:
                         'needs window.boundary = "core" with a [core] table and a [[gap]], or "open" for no core')
 
 
-def load_case(path: str | Path) -> Case:
+def load_case(path: str | Path, allow_outside_files: bool = False) -> Case:
     """Read and check the case file at ``path``, its conductor layout included
-    (so that a command stops on bad input before it prints or writes anything)."""
+    (so that a command stops on bad input before it prints or writes anything).
+    Files the case names (waveform ``file``) are taken from the case file's
+    folder; one outside it is refused unless ``allow_outside_files``."""
     from .layout import place  # layout imports this module
 
     path = Path(path)
@@ -801,7 +807,7 @@ def load_case(path: str | Path) -> Case:
     except ValueError as error:  # an integer of more than 4300 digits (Python's int/str limit)
         raise CaseError("", f"TOML value cannot be read: {error.args[0].split(':')[0]}",
                         "give numbers of ordinary size", name) from None
-    case = parse_case(doc, name)
+    case = parse_case(doc, name, allow_outside_files)
     try:
         for arrangement in variant_cases(case):
             place(arrangement)
@@ -834,7 +840,8 @@ def _waveform_settings(top: _Table) -> WaveformSettings | None:
     return parse_settings(_Table(top.raw("waveform"), "waveform"))
 
 
-def _winding_waveform(t: _Table, settings: WaveformSettings | None, path: str) -> Waveform | None:
+def _winding_waveform(t: _Table, settings: WaveformSettings | None, path: str,
+                      allow_outside_files: bool = False) -> Waveform | None:
     """A winding's waveform = {...}; refused together with current or phase."""
     if not t.has("waveform"):
         if settings is not None and not t.has("current"):
@@ -846,7 +853,8 @@ def _winding_waveform(t: _Table, settings: WaveformSettings | None, path: str) -
             raise CaseError(t.key(name), "given together with waveform",
                             "give either current and phase (a sine) or waveform = {...}, not both")
     base = Path(path).parent if path else Path(".")
-    return parse_waveform(_Table(t.raw("waveform"), t.key("waveform")), settings.period, base)
+    return parse_waveform(_Table(t.raw("waveform"), t.key("waveform")), settings.period, base,
+                          allow_outside_files)
 
 
 def _plan_waveforms(windings: list[Winding], settings: WaveformSettings

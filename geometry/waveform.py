@@ -449,22 +449,45 @@ def read_samples(path: Path, name: str, key: str) -> list[tuple[float, float]]:
     return points
 
 
-def _file(table: TableLike, period: float, base_dir: Path) -> Waveform:
+def case_file_path(name: str, base_dir: Path, key: str, allow_outside_files: bool = False) -> Path:
+    """The file ``name`` that a case refers to: a relative name is taken from
+    ``base_dir`` (the case file's folder).  Unless ``allow_outside_files``, a
+    name that resolves outside that folder (through ``..``, an absolute path or
+    a symbolic link) is refused: a case file is data, and reads only what lies
+    beside it."""
+    if "\0" in name:
+        raise CaseError(key, f"{name!r} contains a NUL character", "give the file's name")
+    path = Path(name)
+    if not path.is_absolute():
+        path = base_dir / path
+    if allow_outside_files:
+        return path
+    try:
+        inside = path.resolve().is_relative_to(base_dir.resolve())
+    except (OSError, RuntimeError):  # a symbolic-link loop, a name the system refuses
+        inside = False
+    if not inside:
+        raise CaseError(key, f'"{name}" escapes the case folder',
+                        "move the file beside the case or pass --allow-outside-files")
+    return path
+
+
+def _file(table: TableLike, period: float, base_dir: Path, allow_outside_files: bool = False) -> Waveform:
     name = table.raw("file")
     key = table.key("file")
     table.close()
     if not isinstance(name, str) or not name.strip():
         raise CaseError(key, f"expected a file name, got {name!r}", 'write file = "primary.csv"')
-    path = Path(name)
-    if not path.is_absolute():
-        path = base_dir / path
+    path = case_file_path(name, base_dir, key, allow_outside_files)
     points = read_samples(path, name, key)
     _check_points(points, period, key, lambda k: f'"{name}" point {k + 1}')
     return Waveform("file", tuple(points), source=name)
 
 
-def parse_waveform(table: TableLike, period: float, base_dir: Path) -> Waveform:
-    """A winding's ``waveform = {...}``: a named ``shape``, ``samples`` or a ``file``."""
+def parse_waveform(table: TableLike, period: float, base_dir: Path, allow_outside_files: bool = False) -> Waveform:
+    """A winding's ``waveform = {...}``: a named ``shape``, ``samples`` or a ``file``
+    (taken from ``base_dir``, the case file's folder; outside it only with
+    ``allow_outside_files``)."""
     given = [name for name in ("shape", "samples", "file") if table.has(name)]
     if len(given) > 1:
         raise CaseError(table.key(given[1]), f"given together with {given[0]}",
@@ -480,7 +503,7 @@ def parse_waveform(table: TableLike, period: float, base_dir: Path) -> Waveform:
     if given[0] == "samples":
         return _samples(table, period)
     if given[0] == "file":
-        return _file(table, period, base_dir)
+        return _file(table, period, base_dir, allow_outside_files)
     shape = table.text("shape", None, SHAPES, required=True)
     if shape == "triangle":
         return _triangle(table, period)

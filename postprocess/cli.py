@@ -91,9 +91,9 @@ def _inductance_lines(report) -> str:
     return "\n".join(lines)
 
 
-def _load(path: str) -> Case:
+def _load(path: str, allow_outside_files: bool = False) -> Case:
     """The case, with its notes (remarks that are not errors) on stderr."""
-    case = load_case(path)
+    case = load_case(path, allow_outside_files=allow_outside_files)
     for note in case.notes:
         print(f"racfield: note: {note}", file=sys.stderr)
     return case
@@ -126,7 +126,7 @@ def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
 
 
 def command_run(args) -> int:
-    case = _load(args.case)
+    case = _load(args.case, args.allow_outside_files)
     out = Path(args.out) if args.out else Path(args.case).with_suffix("")
     if out.exists() and not out.is_dir():
         raise CaseError("--out", f"{out} exists and is not a folder", "name a folder for the results", args.case)
@@ -185,7 +185,7 @@ def _check_text(case: Case) -> str:
 
 
 def command_check(args) -> int:
-    case = _load(args.case)
+    case = _load(args.case, args.allow_outside_files)
     for arrangement in variant_cases(case):
         if arrangement.variant:
             print(f"== variant {arrangement.variant}")
@@ -244,9 +244,13 @@ def parser() -> argparse.ArgumentParser:
     run.add_argument("--quiet", action="store_true", help="no progress lines")
     run.add_argument("--exact", action="store_true",
                      help="one full solve per frequency (no reduced-order sweep)")
+    run.add_argument("--allow-outside-files", action="store_true",
+                     help="read files the case names also outside the case file's folder")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")
+    check.add_argument("--allow-outside-files", action="store_true",
+                       help="read files the case names also outside the case file's folder")
     check.set_defaults(handler=command_check)
     loss = sub.add_parser("loss", help="winding losses at other currents, from a results.json without a new solve")
     loss.add_argument("results", help="results.json, or the results folder")

@@ -19,7 +19,7 @@ import numpy as np
 
 from .errors import CaseError
 from .materials import MATERIALS, ALIASES
-from .units import EXAMPLES, quantity, short
+from .units import EXAMPLES, in_range, quantity, short
 from .waveform import (Spectrum, Waveform, WaveformSettings, fundamental_phasor, parse_settings,
                        parse_waveform, plan, sine_of, spectrum)
 
@@ -266,7 +266,7 @@ class _Table:
         if nonnegative and number < 0.0:
             raise CaseError(self.key(name), f"must not be negative, got {value!r}",
                             "give zero or a positive value")
-        return number
+        return in_range(number, kind, self.key(name), value)
 
     def text(self, name: str, default: str | None = None, choices: tuple[str, ...] = (),
              required: bool = False) -> str:
@@ -326,6 +326,9 @@ def _frequencies(table: _Table) -> tuple[float, ...]:
                             'write frequencies = ["100 kHz", "400 kHz"]')
         freqs = [quantity(v, "frequency", f"{table.key('frequencies')}[{i + 1}]")
                  for i, v in enumerate(values)]
+        for i, (f, v) in enumerate(zip(freqs, values)):
+            if f > 0.0:
+                in_range(f, "frequency", f"{table.key('frequencies')}[{i + 1}]", v)
         for name in ("start", "stop", "points"):
             if table.has(name):
                 raise CaseError(table.key(name), "given together with frequencies",
@@ -517,9 +520,15 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     mesh_table = _Table(top.raw("mesh", {}), "mesh")
     density = mesh_table.quantity("density", "number", 1.0, positive=True)
     far = mesh_table.quantity("far_radius_factor", "number", 5.0, positive=True)
+    if not 0.01 <= density <= 100.0:
+        raise CaseError("mesh.density", f"{density:g} is outside 0.01..100",
+                        "use a factor near 1 (2 halves the element sizes)")
     if far < 2.0:
         raise CaseError("mesh.far_radius_factor", f"{far:g} is too close to the window",
                         "use 2 or more (default 5)")
+    if far > 100.0:
+        raise CaseError("mesh.far_radius_factor", f"{far:g} is more than 100",
+                        "use 100 or less (default 5)")
     mesh_table.close()
     top.close()
 

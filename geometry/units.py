@@ -34,6 +34,26 @@ EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "c
             "resistivity": '"1.72e-8 ohm*m"'}
 
 
+#: the magnitudes a case may give, zero aside: (smallest, largest, in words).  Beyond
+#: them a model is no longer a winding window, and floating-point arithmetic would
+#: lose the result (the skin depth at 5e-324 Hz, the area of a 1e-300 m wire)
+LIMITS = {"length": (1e-9, 1e3, "0 or between 1 nm and 1 km"),
+          "frequency": (1e-3, 1e12, "0 or between 1 mHz and 1 THz"),
+          "current": (0.0, 1e6, "at most 1 MA")}
+
+
+def in_range(number: float, kind: str, key: str, value: object = None) -> float:
+    """``number`` when it is zero or its magnitude lies within ``LIMITS[kind]``
+    (kinds without limits pass); raises :class:`CaseError` naming ``key`` otherwise."""
+    if kind not in LIMITS or number == 0.0:
+        return number
+    low, high, words = LIMITS[kind]
+    if not low <= abs(number) <= high:
+        raise CaseError(key, f"{short(number if value is None else value)} is out of range: "
+                        f"{_a(kind)} must be {words}", f"give {_a(kind)} in that range, such as {EXAMPLES[kind]}")
+    return number
+
+
 def short(value: object) -> str:
     """``repr(value)`` for a one-line message; an integer beyond the float range
     by its number of digits (Python refuses to print one of more than 4300)."""

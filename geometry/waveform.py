@@ -37,7 +37,7 @@ from typing import Iterable, Protocol
 import numpy as np
 
 from .errors import CaseError
-from .units import quantity, short
+from .units import LIMITS, in_range, quantity, short
 
 SHAPES = ("triangle", "trapezoid", "sine")
 DEFAULT_FRACTION = 0.995     #: share of the AC RMS^2 the solved harmonics must hold
@@ -45,6 +45,8 @@ DEFAULT_MAX_HARMONIC = 200   #: highest harmonic solved
 MAX_HARMONIC_LIMIT = 999     #: with 0 Hz, one solve per harmonic stays within the 1000-frequency limit
 NEGLIGIBLE_POWER = 1e-12     #: a harmonic below this share of every winding's AC RMS^2 is not solved
 SPAN_TOLERANCE = 1e-9        #: relative slack on "the samples span at most one period"
+STEP_TOLERANCE = 1e-12       #: corners closer than this share of the period make a step
+MAX_TIME = 1e3               #: s, the longest time a case may give (a period of 1000 s: f0 = 1 mHz)
 
 _TIME_UNITS = {"s": 1.0, "ms": 1e-3, "us": 1e-6, "\u00b5s": 1e-6, "\u03bcs": 1e-6, "ns": 1e-9, "ps": 1e-12}
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
@@ -173,7 +175,7 @@ def _segments(points: tuple[tuple[float, float], ...], period: float):
     t = t - (t[0] - t[0] % period)  # whole periods only: the function is unchanged
     t_b = np.append(t[1:], t[0] + period)
     i_b = np.append(i[1:], i[0])
-    keep = t_b - t > 0.0
+    keep = t_b - t > STEP_TOLERANCE * period   # shorter: a step (its slope would overflow)
     return t[keep], t_b[keep], i[keep], i_b[keep]
 
 
@@ -281,6 +283,9 @@ def time_value(value: object, key: str) -> float:
         number = float(match.group(1)) * _TIME_UNITS[unit]
     if not math.isfinite(number):
         raise CaseError(key, f"{value!r} is not a finite number", "give a finite time")
+    if abs(number) > MAX_TIME:
+        raise CaseError(key, f"{value!r} is out of range: a time must be at most {MAX_TIME:g} s",
+                        f"give a time in that range, such as {TIME_EXAMPLE}")
     return number
 
 
@@ -305,6 +310,10 @@ def parse_settings(table: TableLike) -> WaveformSettings:
         if not period > 0.0:
             raise CaseError(table.key("period"), f"must be greater than zero, got {table.raw('period')!r}",
                             f"give one period of the waveforms, such as {TIME_EXAMPLE}")
+        if 1.0 / period > LIMITS["frequency"][1]:
+            raise CaseError(table.key("period"), f"{table.raw('period')!r} is out of range: the fundamental "
+                            f"1/period must be at most {LIMITS['frequency'][1]:g} Hz",
+                            f"give a period of 1 ps or more, such as {TIME_EXAMPLE}")
     fraction = table.quantity("fraction", "number", DEFAULT_FRACTION)
     if not 0.0 < fraction <= 1.0:
         raise CaseError(table.key("fraction"), f"{fraction:g} is outside 0..1",
@@ -405,7 +414,8 @@ def _samples(table: TableLike, period: float) -> Waveform:
         item = f"{key}[{k + 1}]"
         if not isinstance(pair, list) or len(pair) != 2:
             raise CaseError(item, f"expected a [time, current] pair, got {pair!r}", 'write ["4 us", "2 A"]')
-        points.append((time_value(pair[0], item + "[1]"), quantity(pair[1], "current", item + "[2]")))
+        current = quantity(pair[1], "current", item + "[2]")
+        points.append((time_value(pair[0], item + "[1]"), in_range(current, "current", item + "[2]", pair[1])))
     _check_points(points, period, key, lambda k: f"point {k + 1}")
     return Waveform("samples", tuple(points))
 
@@ -445,6 +455,9 @@ def read_samples(path: Path, name: str, key: str) -> list[tuple[float, float]]:
                             "give the time in s and the current in A as plain numbers") from None
         if not (math.isfinite(t) and math.isfinite(i)):
             raise CaseError(key, f'"{name}" line {line}: not a finite number', "give finite numbers")
+        if abs(t) > MAX_TIME or abs(i) > LIMITS["current"][1]:
+            raise CaseError(key, f'"{name}" line {line}: out of range (times at most {MAX_TIME:g} s, '
+                            f"currents {LIMITS['current'][2]})", "give the time in s and the current in A")
         points.append((t, i))
     return points
 

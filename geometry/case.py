@@ -727,15 +727,15 @@ def _notes(model: Model) -> tuple[str, ...]:
     return ()
 
 
-def _strand_count(spec: ConductorSpec) -> int:
+def strands_per_turn(spec: ConductorSpec) -> int:
     """Conductors one turn of ``spec`` places: every strand of explicit litz, else one."""
     return spec.strands if spec.shape == "litz" and spec.representation == "strands" else 1
 
 
 def winding_conductors(case: Case, name: str) -> int:
     """Number of conductors of winding ``name`` (explicit litz: its strands)."""
-    return (sum(l.turns * l.repeat * _strand_count(l.conductor) for l in case.layers if l.winding == name)
-            + sum(_strand_count(c.conductor) for c in case.conductors if c.winding == name))
+    return (sum(l.turns * l.repeat * strands_per_turn(l.conductor) for l in case.layers if l.winding == name)
+            + sum(strands_per_turn(c.conductor) for c in case.conductors if c.winding == name))
 
 
 def parallel_of(case: Case, name: str) -> Parallel:

@@ -12,10 +12,13 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .case import Case, ConductorSpec, parallel_of
+from .case import Case, ConductorSpec, parallel_of, strands_per_turn
 from .errors import CaseError
 
 _TOL = 1e-12  # m; touching is allowed, overlapping is not
+#: the most conductors (turns, parallel conductors, litz strands) one arrangement may place:
+#: the solver carries one unknown current per conductor, and dense matrices of that order
+MAX_CONDUCTORS = 10_000
 
 
 @dataclass(frozen=True)
@@ -76,6 +79,7 @@ def place(case: Case) -> list[Conductor]:
                           else (win.margin_inner, win.width - win.margin_outer))
     direction = "width" if across_width else "height"
 
+    _check_count(case)
     turn_count: dict[str, int] = {}
     placed: list[Conductor] = []
 
@@ -145,6 +149,20 @@ def place(case: Case) -> list[Conductor]:
     return placed
 
 
+def _check_count(case: Case) -> None:
+    """At most MAX_CONDUCTORS conductors, counted before any is placed."""
+    total = 0
+    items = [(l.key, l.turns * l.repeat * strands_per_turn(l.conductor)) for l in case.layers]
+    items += [(c.key, strands_per_turn(c.conductor)) for c in case.conductors]
+    for key, count in items:
+        total += count
+        if total > MAX_CONDUCTORS:
+            raise CaseError(key, f"the case places more than {MAX_CONDUCTORS} conductors by here "
+                            f"(turns x repeat x litz strands)",
+                            "use fewer turns or strands; a litz winding can be one homogenized bundle per turn "
+                            '(representation = "bundle")')
+
+
 def strand_positions(n: int, d: float, bundle: float, key: str = "conductor") -> list[tuple[float, float]]:
     """Centres (m, from the bundle centre) of ``n`` strands of diameter ``d`` in a
     bundle of diameter ``bundle``: one at the centre, then rings of 6k strands at
@@ -183,17 +201,24 @@ def _overlap(a: Conductor, b: Conductor) -> bool:
 
 
 def _check_overlaps(conductors: list[Conductor]) -> None:
-    order = sorted(conductors, key=lambda c: c.x - c.width / 2)
-    for i, a in enumerate(order):
-        right = a.x + a.width / 2
-        for b in order[i + 1:]:
-            if b.x - b.width / 2 >= right:
-                break
-            if _overlap(a, b):
-                first, second = sorted((a, b), key=lambda c: c.index)
-                raise CaseError(second.key, f"{second.winding} turn {second.turn} overlaps "
-                                f"{first.winding} turn {first.turn} ({first.key})",
-                                "move one of them or make the conductors smaller")
+    """Refuse the first conductor (in case order) that overlaps an earlier one.
+    Conductors sit in square cells as large as the largest conductor, so two
+    that overlap lie in the same or neighbouring cells: the check is linear in
+    the number of conductors, not quadratic."""
+    if not conductors:
+        return
+    cell = max(max(c.width, c.height) for c in conductors)
+    grid: dict[tuple[int, int], list[Conductor]] = {}
+    for b in conductors:
+        i, j = math.floor(b.x / cell), math.floor(b.y / cell)
+        earlier = [a for di in (-1, 0, 1) for dj in (-1, 0, 1) for a in grid.get((i + di, j + dj), ())
+                   if _overlap(a, b)]
+        if earlier:
+            first = min(earlier, key=lambda c: c.index)
+            raise CaseError(b.key, f"{b.winding} turn {b.turn} overlaps "
+                            f"{first.winding} turn {first.turn} ({first.key})",
+                            "move one of them or make the conductors smaller")
+        grid.setdefault((i, j), []).append(b)
 
 
 def dc_resistance(conductor: Conductor, resistivity: float, radius_offset: float | None = None) -> float:
@@ -210,6 +235,8 @@ def dc_resistance(conductor: Conductor, resistivity: float, radius_offset: float
     r = conductor.x + radius_offset
     if conductor.shape == "round":
         a = conductor.radius
-        return resistivity / (r - math.sqrt(r * r - a * a))
-    r1, r2 = r - conductor.width / 2, r + conductor.width / 2
-    return 2 * math.pi * resistivity / (conductor.height * math.log(r2 / r1))
+        # R0 - sqrt(R0^2 - a^2) = a^2 / (R0 + sqrt(R0^2 - a^2)): no cancellation far from the axis
+        return resistivity * (r + math.sqrt(r * r - a * a)) / (a * a)
+    r1 = r - conductor.width / 2
+    # ln(r2/r1) = log1p(width/r1): no cancellation for a thin ring far from the axis
+    return 2 * math.pi * resistivity / (conductor.height * math.log1p(conductor.width / r1))

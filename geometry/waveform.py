@@ -312,7 +312,7 @@ def parse_settings(table: TableLike) -> WaveformSettings:
                             f"give one period of the waveforms, such as {TIME_EXAMPLE}")
         if 1.0 / period > LIMITS["frequency"][1]:
             raise CaseError(table.key("period"), f"{table.raw('period')!r} is out of range: the fundamental "
-                            f"1/period must be at most {LIMITS['frequency'][1]:g} Hz",
+                            "1/period must be at most 1 THz",
                             f"give a period of 1 ps or more, such as {TIME_EXAMPLE}")
     fraction = table.quantity("fraction", "number", DEFAULT_FRACTION)
     if not 0.0 < fraction <= 1.0:

@@ -7,6 +7,7 @@ y runs 0.6 .. 7.6 mm (7.0 mm).  All the numbers below are in mm.
 
 from __future__ import annotations
 
+import math
 import tomllib
 
 import pytest
@@ -289,3 +290,44 @@ def test_explicit_conductor_overlapping_a_layer_turn_is_refused():
     # the bare turns leave a 0.1 mm gap (3.55 .. 3.65): a 0.1 mm round fills it, touching both
     assert len(placed(layer("a", ROUND, 4), conductor("b", ("0.75 mm", "3.6 mm"), shape="round",
                                                       diameter="0.1 mm"))) == 5
+
+
+# --- many conductors, and the first overlap in case order ---------------------
+
+
+def test_first_overlap_in_case_order_is_named():
+    # conductor[3] overlaps conductor[1] and conductor[2]; conductor[2] overlaps nothing before it:
+    # the message names conductor[3] and the earliest one it overlaps (the rule is the spec)
+    err = refused(conductor("a", ("2 mm", "2 mm"), **R1), conductor("a", ("3 mm", "2 mm"), **R1),
+                  conductor("b", ("2.5 mm", "2 mm"), **R1))
+    assert err.key == "conductor[3]" and "(conductor[1])" in err.problem
+
+
+def test_overlap_found_among_many_conductors():
+    # 700 turns of 0.01 mm in one column (the grid check is linear in the conductors); one
+    # explicit conductor at the middle of the column overlaps a turn
+    column = layer("a", '{ shape = "round", diameter = "0.01 mm" }', 700, align="start")
+    assert len(placed(column)) == 700
+    err = refused(column, conductor("b", ("0.505 mm", "4.1 mm"), shape="round", diameter="0.01 mm"))
+    assert err.key == "conductor[1]" and "layer[1]" in err.problem
+
+
+def test_more_than_the_conductor_limit_is_refused():
+    # MAX_CONDUCTORS (10000): counted before anything is placed, named at the layer that passes it
+    from geometry.layout import MAX_CONDUCTORS
+    litz = '{ shape = "litz", strands = 5000, strand_diameter = "1 um", representation = "strands" }'
+    err = refused(layer("a", litz, 1), layer("a", litz, 1), layer("b", litz, 1))
+    assert MAX_CONDUCTORS == 10_000 and err.key == "layer[3]" and "10000 conductors" in err.problem
+
+
+def test_ring_far_from_the_axis_has_the_straight_wire_resistance():
+    # R = rho / (R0 - sqrt(R0^2 - a^2)) tends to rho 2 pi R0 / (pi a^2) for a << R0 (the
+    # straight wire of length 2 pi R0; exact limit of the series a^2/(2 R0) + ...), and a
+    # rectangle's 2 pi rho / (h ln(r2/r1)) tends to rho 2 pi r / (w h): computed without
+    # cancellation even at a 1e9 ratio
+    from geometry.layout import Conductor, dc_resistance
+    rho, r0 = 1.7241e-8, 1.0
+    wire = Conductor(0, "a", 1, "round", 0.0, 0.0, 2e-9, 2e-9, "layer[1]")
+    assert dc_resistance(wire, rho, r0) == pytest.approx(rho * 2 * math.pi * r0 / (math.pi * 1e-18), rel=1e-12)
+    foil = Conductor(0, "a", 1, "rect", 0.0, 0.0, 1e-9, 1e-3, "layer[1]")
+    assert dc_resistance(foil, rho, r0) == pytest.approx(rho * 2 * math.pi * r0 / (1e-9 * 1e-3), rel=1e-12)

@@ -240,3 +240,11 @@ def test_cases_folder_still_loads():
     for path in sorted(CASES.glob("*.toml")):
         load_case(path)
     assert os.path.exists(CASES / "flyback_waveforms.toml")
+
+
+def test_both_commands_take_the_flag():
+    # rule (b): run and check accept --allow-outside-files; it is off unless given
+    from postprocess.cli import parser
+    for command in ("run", "check"):
+        assert parser().parse_args([command, "case.toml", "--allow-outside-files"]).allow_outside_files is True
+        assert parser().parse_args([command, "case.toml"]).allow_outside_files is False

@@ -78,6 +78,20 @@ class SweepResult:
     sweep_info: dict = field(default_factory=dict)
 
 
+@dataclass
+class PointResult:
+    """One solved frequency of a sweep (see :class:`SweepResult` for the arrays'
+    meaning): ``basis_currents`` (Ne,), ``loss_per_m`` (Nc,),
+    ``impedance_per_m`` and ``inductance_per_m`` (Nc, Nc),
+    ``loss_matrix_per_m`` (Nc, Ne, Ne)."""
+
+    basis_currents: np.ndarray
+    loss_per_m: np.ndarray
+    impedance_per_m: np.ndarray
+    inductance_per_m: np.ndarray
+    loss_matrix_per_m: np.ndarray
+
+
 #: sweeps with more frequencies than this use the reduced model by default
 REDUCED_MIN_FREQUENCIES = 8
 #: stop adding expansion points when the reduced column impedances with one moment
@@ -188,11 +202,17 @@ def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
 
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
-              method: str = "auto") -> SweepResult:
+              method: str = "auto", done: dict[int, PointResult] | None = None,
+              on_point: Callable[[int, PointResult, Callable[[], "SweepResult"]], None] | None = None
+              ) -> SweepResult:
     """Place, mesh, assemble once and solve every frequency of ``case``.
 
     ``method``: "auto" (reduced model for long sweeps without litz bundles),
-    "reduced" or "exact" (one factorization per frequency)."""
+    "reduced" or "exact" (one factorization per frequency).  ``done``: points
+    already solved (by index, e.g. from an interrupted run), taken as they
+    are; the last frequency is solved again all the same, for its field.
+    ``on_point(index, point, partial)`` is called after every newly solved
+    point; ``partial()`` gives the sweep of the points solved so far."""
     timings = {}
     start = time.perf_counter()
     conductors = place(case)
@@ -229,6 +249,17 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     inductance = np.zeros((nf, nc, nc))
     loss_matrix = np.zeros((nf, nc, nw, nw), dtype=complex)
     snapshot = None
+    done = dict(done or {})
+    finished = np.zeros(nf, dtype=bool)
+
+    def store(i: int, point: PointResult) -> None:
+        basis_currents[i], loss[i] = point.basis_currents, point.loss_per_m
+        impedance[i], inductance[i] = point.impedance_per_m, point.inductance_per_m
+        loss_matrix[i] = point.loss_matrix_per_m
+        finished[i] = True
+
+    for i, point in done.items():
+        store(i, point)
     start = time.perf_counter()
     model = None
     sweep_info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
@@ -237,16 +268,27 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
                       "max_check_deviation": None, "reduced_size": model.size}
         timings["reduced_build_s"] = time.perf_counter() - start
+    offset = case.window.inner_radius if case.model.axisymmetric else None
+    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
+
+    def result(index: np.ndarray | slice = slice(None)) -> SweepResult:
+        return SweepResult(freqs[index], conductors, rho, currents, rdc, loss[index], impedance[index],
+                           problem.areas / true_area - 1.0, inductance[index], loss_matrix[index], names,
+                           connection, problem.unknowns, window_mesh.elements, window_mesh.surface_size,
+                           timings, snapshot, excitation, basis_currents[index], sweep_info)
+
     points_start = time.perf_counter()
     for i, f in enumerate(freqs):
         last = i == nf - 1
+        if finished[i] and not last:
+            if progress:
+                progress(i + 1, nf, f)
+            continue
         response = model.respond(2.0 * np.pi * f) if model is not None else None
         solution = problem.solve_windings(f, connection, share, keep_field=last, response=response)
-        basis_currents[i] = solution.currents
-        loss[i] = solution.loss_per_m
-        impedance[i] = solution.impedance_per_m
-        inductance[i] = solution.inductance_per_m
-        loss_matrix[i] = solution.loss_matrix_per_m
+        point = PointResult(solution.currents, solution.loss_per_m, solution.impedance_per_m,
+                            solution.inductance_per_m, solution.loss_matrix_per_m)
+        store(i, point)
         if last:
             mmf = None
             if case.window.boundary != "open":
@@ -258,6 +300,8 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
                 f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
                 problem.current_density(f, solution.voltage_per_m, solution.potential,
                                          connection @ solution.currents), mmf)
+        if on_point and i not in done:
+            on_point(i, point, lambda: result(np.nonzero(finished)[0]))
         if progress:
             progress(i + 1, nf, f)
     if model is not None:
@@ -283,9 +327,4 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         sweep_info["max_check_deviation"] = deviation
         timings["reduced_check_s"] = time.perf_counter() - check_start
     timings["solve_s"] = time.perf_counter() - start
-    offset = case.window.inner_radius if case.model.axisymmetric else None
-    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
-    return SweepResult(freqs, conductors, rho, currents, rdc, loss, impedance,
-                       problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
-                       problem.unknowns, window_mesh.elements,
-                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents, sweep_info)
+    return result()

@@ -2,7 +2,8 @@
 ``report`` writes report.html from a results folder.
 
 Exit status: 0 done; 1 internal failure (a bug: please report it);
-2 bad input (one line on stderr naming the file, the key and the fix).
+2 bad input (one line on stderr naming the file, the key and the fix);
+130 interrupted (``racfield run --resume`` finishes an interrupted run).
 """
 
 from __future__ import annotations
@@ -24,12 +25,13 @@ from geometry.materials import material, skin_depth
 
 from geometry.units import quantity
 
-from .comparison import folder_name, summary, write_comparison
+from .checkpoint import RunState, fingerprint
+from .comparison import COMPARISON_FILES, folder_name, summary, write_comparison
 from .harmonics import harmonics_table, waveform_lines
 from .html_report import write_report
 from .impedance import losses_from_document
-from .report import CAUTION, build_report, format_frequency, parallel_document
-from .writers import write_all
+from .report import CAUTION, build_report, format_frequency, parallel_document, results_document
+from .writers import WRITERS, results_json, write_all
 
 EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
 
@@ -99,14 +101,35 @@ def _load(path: str) -> Case:
     return case
 
 
-def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
-    """Solve one arrangement, write its result files into ``out``, print its table."""
+#: a partial results.json is rewritten at most this often during a sweep (s)
+PARTIAL_EVERY_S = 2.0
+
+
+def _run_one(case: Case, out: Path, args, state: RunState, key: str) -> dict:
+    """Solve one arrangement (resuming its solved points when asked), write its
+    result files into ``out``, print its table; returns its results document."""
     out.mkdir(parents=True, exist_ok=True)
     print(f"racfield: {case.title}", file=sys.stderr)
-    sweep = run_sweep(case, progress=None if quiet else _progress(sys.stderr),
-                      method="exact" if exact else "auto")
+    done = state.load_points(key) if args.resume else {}
+    if done:
+        print(f"racfield: resuming: {len(done)} of {len(case.frequencies)} frequencies already solved",
+              file=sys.stderr)
+    last_partial = [-math.inf]
+
+    def keep(index: int, point, partial) -> None:
+        # every solved point is kept at once; results.json follows at most every PARTIAL_EVERY_S
+        state.save_point(key, index, point)
+        now = time.perf_counter()
+        if now - last_partial[0] >= PARTIAL_EVERY_S:
+            last_partial[0] = now
+            state.record(results_json.write(build_report(case, partial()), out, len(case.frequencies)))
+
+    sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr),
+                      method="exact" if args.exact else "auto", done=done, on_point=keep)
     report = build_report(case, sweep)
     written = write_all(report, out)
+    state.record(written)
+    state.finish(key)
     print(f"== {case.title}")
     print(_summary_table(report))
     print(_inductance_lines(report))
@@ -122,7 +145,16 @@ def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
               f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
-    return report
+    return results_document(report)
+
+
+def _finished_document(folder: Path, key: str, case_file: str) -> dict:
+    """The results document of an arrangement a resumed run finished before."""
+    try:
+        return json.loads((folder / "results.json").read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        raise CaseError("--resume", f"{folder / 'results.json'} of a finished variant cannot be read",
+                        "run without --resume to solve everything again", case_file) from None
 
 
 def command_run(args) -> int:
@@ -136,15 +168,28 @@ def command_run(args) -> int:
         raise CaseError("--out", f"cannot create {out} ({error.strerror})", "name a writable folder",
                         args.case) from None
     arrangements = variant_cases(case)
-    if not case.variants:
-        _run_one(case, out, args.quiet, args.exact)
-        return EXIT_OK
-    reports = []
-    for arrangement in arrangements:
-        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet, args.exact))
-    written = write_comparison(reports, out, case.compare_frequency)
-    print(summary(reports, case.compare_frequency))
-    print("wrote: " + ", ".join(str(p) for p in written))
+    keys = [folder_name(a.variant) for a in arrangements] if case.variants else [""]
+    folders = [out / k if k else out for k in keys]
+    planned = [folder / name for folder in folders for name in WRITERS]
+    if case.variants:
+        planned += [out / name for name in COMPARISON_FILES]
+    state = RunState(out)
+    # every check comes before the first solve: nothing computed is lost to a refusal
+    state.start(fingerprint(args.case, case), {"exact": bool(args.exact)}, args.resume, args.case)
+    state.claim(planned, args.force, args.case)
+    documents = []
+    for arrangement, key, folder in zip(arrangements, keys, folders):
+        if args.resume and state.is_finished(key):
+            print(f"racfield: {arrangement.title}: finished before, kept", file=sys.stderr)
+            documents.append((arrangement.variant, _finished_document(folder, key, args.case)))
+            continue
+        documents.append((arrangement.variant, _run_one(arrangement, folder, args, state, key)))
+    if case.variants:
+        written = write_comparison(documents, out, case.compare_frequency)
+        state.record(written)
+        print(summary(documents, case.compare_frequency))
+        print("wrote: " + ", ".join(str(p) for p in written))
+    state.clear_points()
     return EXIT_OK
 
 
@@ -244,6 +289,10 @@ def parser() -> argparse.ArgumentParser:
     run.add_argument("--quiet", action="store_true", help="no progress lines")
     run.add_argument("--exact", action="store_true",
                      help="one full solve per frequency (no reduced-order sweep)")
+    run.add_argument("--resume", action="store_true",
+                     help="finish an interrupted run in the same folder: only the missing frequencies and variants")
+    run.add_argument("--force", action="store_true",
+                     help="write even over files in the results folder that racfield did not write")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")
@@ -272,7 +321,9 @@ def main(argv: list[str] | None = None) -> int:
     except BrokenPipeError:  # output piped into a program that stopped reading
         return EXIT_OK
     except KeyboardInterrupt:
-        print("racfield: interrupted", file=sys.stderr)
+        hint = (f"; the solved points are kept: racfield run {args.case} --resume finishes the run"
+                if getattr(args, "command", "") == "run" else "")
+        print(f"racfield: interrupted{hint}", file=sys.stderr)
         return 130
     except Exception as error:  # a bug, not bad input
         if os.environ.get("RACFIELD_DEBUG"):

@@ -166,9 +166,10 @@ def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarr
 
 
 def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
-    """The window mesh, sized from the smallest skin depth at the highest frequency."""
+    """The window mesh, sized from the smallest skin depth at the mesh frequency
+    (``[mesh] frequency``, else the highest frequency of the case)."""
     rho = conductor_resistivities(case, conductors)
-    delta = skin_depth(float(rho.min()), max(case.frequencies))
+    delta = skin_depth(float(rho.min()), case.mesh_frequency)
     sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
                       sizing, case.mesh.far_radius_factor, case.core,

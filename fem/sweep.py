@@ -15,6 +15,7 @@ from geometry.layout import Conductor, dc_resistance, place
 from geometry.materials import material, skin_depth
 from geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
+from .guards import sweep_warnings
 from .mmf import MmfProfile, mmf_profile
 from .parallel import Excitation, excitation_basis, sharing
 from .problem import WindowProblem
@@ -76,6 +77,8 @@ class SweepResult:
     basis_currents: np.ndarray | None = None   #: (Nf, Ne) A RMS in the excitation columns
     #: {"method": "reduced"|"point-by-point", "expansion_hz": [...], "max_check_deviation": float|None}
     sweep_info: dict = field(default_factory=dict)
+    #: numerical warnings, {"kind", "frequency_hz", "message"} each (see :mod:`fem.guards`)
+    warnings: list[dict] = field(default_factory=list)
 
 
 #: sweeps with more frequencies than this use the reduced model by default
@@ -233,6 +236,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     start = time.perf_counter()
     model = None
     sweep_info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
+    residuals = []   # (Hz, backward error or None) of the solves, for the guards
     if use_reduced(case, conductors, method):
         model, chosen, change = reduced_plan(problem, freqs, connection)
         sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
@@ -244,6 +248,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         response = model.respond(2.0 * np.pi * f) if model is not None else None
         solution = problem.solve_windings(f, connection, share, keep_field=last, response=response)
         basis_currents[i] = solution.currents
+        residuals.append((f, solution.residual))
         loss[i] = solution.loss_per_m
         impedance[i] = solution.impedance_per_m
         inductance[i] = solution.inductance_per_m
@@ -270,6 +275,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         deviation = 0.0
         for i in order:
             full = problem.solve_windings(freqs[i], connection, share)
+            residuals.append((freqs[i], full.residual))
             exact_w = members.T @ full.loss_per_m
             reduced_w = members.T @ loss[i]
             ok = np.abs(exact_w) > 0
@@ -289,4 +295,5 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     return SweepResult(freqs, conductors, rho, currents, rdc, loss, impedance,
                        problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
                        problem.unknowns, window_mesh.elements,
-                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents, sweep_info)
+                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents, sweep_info,
+                       sweep_warnings(case, conductors, rho, window_mesh, freqs, residuals, sweep_info))

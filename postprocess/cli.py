@@ -105,6 +105,8 @@ def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
     print(f"racfield: {case.title}", file=sys.stderr)
     sweep = run_sweep(case, progress=None if quiet else _progress(sys.stderr),
                       method="exact" if exact else "auto")
+    for warning in sweep.warnings:
+        print(f"racfield: warning: {warning['message']}", file=sys.stderr)
     report = build_report(case, sweep)
     written = write_all(report, out)
     print(f"== {case.title}")

@@ -139,6 +139,7 @@ def results_document(report: Report) -> dict:
         **({"harmonics": h} if (h := harmonics_document(report)) else {}),
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
+        "warnings": [dict(w) for w in sweep.warnings],
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),

@@ -28,6 +28,7 @@ from .comparison import folder_name, summary, write_comparison
 from .harmonics import harmonics_table, waveform_lines
 from .html_report import write_report
 from .impedance import losses_from_document
+from .mesh_check import mesh_check, mesh_check_line
 from .report import CAUTION, build_report, format_frequency, parallel_document
 from .writers import write_all
 
@@ -99,7 +100,7 @@ def _load(path: str) -> Case:
     return case
 
 
-def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
+def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False, check_mesh: bool = False):
     """Solve one arrangement, write its result files into ``out``, print its table."""
     out.mkdir(parents=True, exist_ok=True)
     print(f"racfield: {case.title}", file=sys.stderr)
@@ -108,6 +109,8 @@ def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
     for warning in sweep.warnings:
         print(f"racfield: warning: {warning['message']}", file=sys.stderr)
     report = build_report(case, sweep)
+    if check_mesh:
+        report.mesh_check = mesh_check(report)
     written = write_all(report, out)
     print(f"== {case.title}")
     print(_summary_table(report))
@@ -122,6 +125,8 @@ def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
     if info.get("method") == "reduced":
         print(f"sweep: reduced model from {len(info['expansion_hz'])} full solves, "
               f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
+    if report.mesh_check is not None:
+        print(mesh_check_line(report.mesh_check))
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
     return report
@@ -139,11 +144,12 @@ def command_run(args) -> int:
                         args.case) from None
     arrangements = variant_cases(case)
     if not case.variants:
-        _run_one(case, out, args.quiet, args.exact)
+        _run_one(case, out, args.quiet, args.exact, args.check_mesh)
         return EXIT_OK
     reports = []
     for arrangement in arrangements:
-        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet, args.exact))
+        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet, args.exact,
+                                args.check_mesh))
     written = write_comparison(reports, out, case.compare_frequency)
     print(summary(reports, case.compare_frequency))
     print("wrote: " + ", ".join(str(p) for p in written))
@@ -246,6 +252,9 @@ def parser() -> argparse.ArgumentParser:
     run.add_argument("--quiet", action="store_true", help="no progress lines")
     run.add_argument("--exact", action="store_true",
                      help="one full solve per frequency (no reduced-order sweep)")
+    run.add_argument("--check-mesh", action="store_true",
+                     help="solve the highest frequency again with element sizes halved and report "
+                          "the change of each winding's Rac (an estimate of the mesh error)")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")

@@ -166,6 +166,7 @@ class Core:
 class MeshOptions:
     density: float = 1.0           #: >1 finer, <1 coarser than the default sizing
     far_radius_factor: float = 5.0  #: open boundary: far circle / window half-diagonal
+    frequency: float | None = None  #: Hz, size the mesh for this frequency (None: the highest solved)
 
 
 @dataclass(frozen=True)
@@ -216,6 +217,11 @@ class Case:
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
+
+    @property
+    def mesh_frequency(self) -> float:
+        """Hz the mesh is sized for: ``[mesh] frequency``, else the highest solved frequency."""
+        return self.mesh.frequency if self.mesh.frequency is not None else max(self.frequencies)
 
 
 class _Table:
@@ -509,11 +515,13 @@ def _parse(doc: dict, path: str) -> Case:
     if far < 2.0:
         raise CaseError("mesh.far_radius_factor", f"{far:g} is too close to the window",
                         "use 2 or more (default 5)")
+    mesh_frequency = (mesh_table.quantity("frequency", "frequency", positive=True)
+                      if mesh_table.has("frequency") else None)
     mesh_table.close()
     top.close()
 
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path, core, _notes(model) + wave_notes, tuple(variants), compare_frequency,
+                MeshOptions(density, far, mesh_frequency), path, core, _notes(model) + wave_notes, tuple(variants), compare_frequency,
                 parallel=tuple(parallel), waveform=settings)
     for arrangement in variant_cases(case):
         _check_arrangement(arrangement)

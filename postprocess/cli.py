@@ -30,6 +30,7 @@ from .comparison import COMPARISON_FILES, folder_name, summary, write_comparison
 from .harmonics import harmonics_table, waveform_lines
 from .html_report import write_report
 from .impedance import losses_from_document
+from .mesh_check import mesh_check, mesh_check_line
 from .report import CAUTION, build_report, format_frequency, parallel_document, results_document
 from .writers import WRITERS, results_json, write_all
 
@@ -126,7 +127,11 @@ def _run_one(case: Case, out: Path, args, state: RunState, key: str) -> dict:
 
     sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr),
                       method="exact" if args.exact else "auto", done=done, on_point=keep)
+    for warning in sweep.warnings:
+        print(f"racfield: warning: {warning['message']}", file=sys.stderr)
     report = build_report(case, sweep)
+    if args.check_mesh:
+        report.mesh_check = mesh_check(report)
     written = write_all(report, out)
     state.record(written)
     state.finish(key)
@@ -143,6 +148,8 @@ def _run_one(case: Case, out: Path, args, state: RunState, key: str) -> dict:
     if info.get("method") == "reduced":
         print(f"sweep: reduced model from {len(info['expansion_hz'])} full solves, "
               f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
+    if report.mesh_check is not None:
+        print(mesh_check_line(report.mesh_check))
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
     return results_document(report)
@@ -293,6 +300,9 @@ def parser() -> argparse.ArgumentParser:
                      help="finish an interrupted run in the same folder: only the missing frequencies and variants")
     run.add_argument("--force", action="store_true",
                      help="write even over files in the results folder that racfield did not write")
+    run.add_argument("--check-mesh", action="store_true",
+                     help="solve the highest frequency again with element sizes halved and report "
+                          "the change of each winding's Rac (an estimate of the mesh error)")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")

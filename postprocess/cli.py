@@ -28,7 +28,7 @@ from geometry.units import quantity
 from .checkpoint import RunState, fingerprint
 from .comparison import COMPARISON_FILES, folder_name, summary, write_comparison
 from .harmonics import harmonics_table, waveform_lines
-from .html_report import write_report
+from .html_report import REPORT_NAME, write_report
 from .impedance import losses_from_document
 from .mesh_check import mesh_check, mesh_check_line
 from .report import CAUTION, build_report, format_frequency, parallel_document, results_document
@@ -282,7 +282,14 @@ def command_loss(args) -> int:
 
 
 def command_report(args) -> int:
-    written = write_report(Path(args.results), Path(args.out) if args.out else None)
+    folder = Path(args.results)
+    target = Path(args.out) if args.out else folder / REPORT_NAME
+    state = RunState(target.parent) if target.parent.is_dir() else None
+    if state is not None:
+        state.claim([target], args.force, str(folder))
+    written = write_report(folder, target)
+    if state is not None and state.exists:
+        state.record([written])
     print(written)
     return EXIT_OK
 
@@ -315,6 +322,7 @@ def parser() -> argparse.ArgumentParser:
     report = sub.add_parser("report", help="one self-contained HTML page (report.html) from a results folder")
     report.add_argument("results", metavar="RESULTS_DIR", help="results folder written by racfield run")
     report.add_argument("--out", help="HTML file to write (default: RESULTS_DIR/report.html)")
+    report.add_argument("--force", action="store_true", help="write even over a file racfield did not write")
     report.set_defaults(handler=command_report)
     return top
 

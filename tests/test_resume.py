@@ -269,3 +269,22 @@ def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys):
     assert err.count("finished before, kept") == len(manifest["finished"])
     assert (out / "comparison.json").read_text() == comparison
     assert unfinished in json.loads(manifest_path.read_text())["finished"]
+
+
+def test_report_does_not_overwrite_a_foreign_file(tmp_path, capsys):
+    """`racfield report` refuses to replace a report.html racfield did not write
+    (exit 2, one line) and rewrites its own one; --force overrides."""
+    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", tmp_path)
+    out = tmp_path / "out"
+    assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
+    assert main(["report", str(out)]) == 0
+    assert main(["report", str(out)]) == 0                     # its own file
+    foreign = tmp_path / "mine.html"
+    foreign.write_text("<p>my page</p>")
+    capsys.readouterr()
+    assert main(["report", str(out), "--out", str(foreign)]) == EXIT_BAD_INPUT
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--force" in err[0]
+    assert foreign.read_text() == "<p>my page</p>"
+    assert main(["report", str(out), "--out", str(foreign), "--force"]) == 0
+    assert foreign.read_text() != "<p>my page</p>"

@@ -18,6 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import CaseError
+from .study import VARIANT_KEY, StudyPoint, point_document, study_points
 from .materials import MATERIALS, ALIASES
 from .units import EXAMPLES, quantity
 from .waveform import (Spectrum, Waveform, WaveformSettings, fundamental_phasor, parse_settings,
@@ -214,6 +215,8 @@ class Case:
     parallel: tuple["Parallel", ...] = ()   #: windings with conductors in parallel
     variant_index: int = 0                  #: 1-based position in [[variant]]; 0 for the base
     waveform: WaveformSettings | None = None  #: [waveform] and the harmonics solved (windings with waveforms)
+    study: tuple[StudyPoint, ...] = ()      #: [study] points (see geometry/study.py)
+    source: dict | None = None              #: the case document without [study], for the study points
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
@@ -462,11 +465,33 @@ def _list_of_tables(doc: _Table, name: str) -> list[_Table]:
 
 
 def parse_case(doc: dict, path: str = "") -> Case:
-    """Build a :class:`Case` from a parsed TOML document."""
+    """Build a :class:`Case` from a parsed TOML document.  With a ``[study]``
+    table the case is the document without it (checked whole) and carries
+    the study's points, each to be made a case by :func:`study_case`."""
     try:
+        if isinstance(doc, dict) and "study" in doc:
+            points = study_points(doc["study"])
+            base = {k: v for k, v in doc.items() if k != "study"}
+            case = _parse(base, path)
+            if case.variants and not any(k == VARIANT_KEY for p in points for k, _ in p.values):
+                raise CaseError("study", "a case with [[variant]] tables needs a study axis on \"variant\"",
+                                'add [[study.axis]] key = "variant", or remove the [[variant]] tables')
+            return replace(case, study=tuple(points), source=base)
         return _parse(doc, path)
     except CaseError as error:
         raise error.in_file(path) if path else error
+
+
+def study_case(case: Case, point: StudyPoint) -> Case:
+    """The case of one study point (CaseError, naming the file, if its document is bad)."""
+    from .layout import place  # layout imports this module
+
+    study = parse_case(point_document(case.source, point), case.path)
+    try:
+        place(study)
+    except CaseError as error:
+        raise error.in_file(case.path) if case.path else error
+    return replace(study, variant=point.name)
 
 
 def _parse(doc: dict, path: str) -> Case:

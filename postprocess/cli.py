@@ -3,6 +3,7 @@
 
 Exit status: 0 done; 1 internal failure (a bug: please report it);
 2 bad input (one line on stderr naming the file, the key and the fix);
+3 a run of several variants finished but some failed (their errors are in study.csv);
 130 interrupted (``racfield run --resume`` finishes an interrupted run).
 """
 
@@ -17,8 +18,10 @@ import sys
 import time
 from pathlib import Path
 
+from threadpoolctl import threadpool_limits
+
 from fem.sweep import conductor_resistivities, run_sweep
-from geometry.case import Case, load_case, variant_cases, winding_turns
+from geometry.case import Case, load_case, study_case, variant_cases, winding_turns
 from geometry.errors import CaseError
 from geometry.layout import dc_resistance, place
 from geometry.materials import material, skin_depth
@@ -26,7 +29,8 @@ from geometry.materials import material, skin_depth
 from geometry.units import quantity
 
 from .checkpoint import RunState, fingerprint
-from .comparison import COMPARISON_FILES, folder_name, summary, write_comparison
+from .comparison import COMPARISON_FILES, STUDY_FILES, folder_name, summary, write_comparison, write_study_table
+from .execution import Job, Outcome, default_workers, run_jobs
 from .harmonics import harmonics_table, waveform_lines
 from .html_report import REPORT_NAME, write_report
 from .impedance import losses_from_document
@@ -34,7 +38,7 @@ from .mesh_check import mesh_check, mesh_check_line
 from .report import CAUTION, build_report, format_frequency, parallel_document, results_document
 from .writers import WRITERS, results_json, write_all
 
-EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
+EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT, EXIT_PARTIAL = 0, 1, 2, 3
 
 
 def _progress(stream):
@@ -125,8 +129,16 @@ def _run_one(case: Case, out: Path, args, state: RunState, key: str) -> dict:
             last_partial[0] = now
             state.record(results_json.write(build_report(case, partial()), out, len(case.frequencies)))
 
-    sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr),
-                      method="exact" if args.exact else "auto", done=done, on_point=keep)
+    # one BLAS thread, as in a worker of the pool: every way of running gives the same numbers
+    with threadpool_limits(limits=1):
+        sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr),
+                          method="exact" if args.exact else "auto", done=done, on_point=keep)
+    return _write_one(case, sweep, out, args, state, key)
+
+
+def _write_one(case: Case, sweep, out: Path, args, state: RunState, key: str) -> dict:
+    """Write one solved arrangement's files and print its table; returns its results document."""
+    out.mkdir(parents=True, exist_ok=True)
     for warning in sweep.warnings:
         print(f"racfield: warning: {warning['message']}", file=sys.stderr)
     report = build_report(case, sweep)
@@ -164,6 +176,23 @@ def _finished_document(folder: Path, key: str, case_file: str) -> dict:
                         "run without --resume to solve everything again", case_file) from None
 
 
+def _arrangements(case: Case) -> list[tuple[str, str | None, Case | None, str | None]]:
+    """(folder key, name, case or None, error line) of every arrangement: the
+    case alone, its [[variant]] arrangements, or its [study] points (a bad
+    point is kept with its error, to fail alone)."""
+    if case.study:
+        out = []
+        for point in case.study:
+            try:
+                out.append((folder_name(point.name), point.name, study_case(case, point), None))
+            except CaseError as error:
+                out.append((folder_name(point.name), point.name, None, error.line()))
+        return out
+    if case.variants:
+        return [(folder_name(a.variant), a.variant, a, None) for a in variant_cases(case)]
+    return [("", None, case, None)]
+
+
 def command_run(args) -> int:
     case = _load(args.case)
     out = Path(args.out) if args.out else Path(args.case).with_suffix("")
@@ -174,28 +203,63 @@ def command_run(args) -> int:
     except OSError as error:
         raise CaseError("--out", f"cannot create {out} ({error.strerror})", "name a writable folder",
                         args.case) from None
-    arrangements = variant_cases(case)
-    keys = [folder_name(a.variant) for a in arrangements] if case.variants else [""]
-    folders = [out / k if k else out for k in keys]
-    planned = [folder / name for folder in folders for name in WRITERS]
-    if case.variants:
-        planned += [out / name for name in COMPARISON_FILES]
+    if args.workers is not None and args.workers < 1:
+        raise CaseError("--workers", f"{args.workers} workers", "give 1 or more (1 runs the variants one by one here)",
+                        args.case)
+    arrangements = _arrangements(case)
+    several = len(arrangements) > 1 or bool(case.study)
+    folders = {key: out / key if key else out for key, _, _, _ in arrangements}
+    names = {key: name for key, name, _, _ in arrangements}
+    planned = [folder / name for folder in folders.values() for name in WRITERS]
+    if several:
+        planned += [out / name for name in COMPARISON_FILES + STUDY_FILES]
     state = RunState(out)
     # every check comes before the first solve: nothing computed is lost to a refusal
     state.start(fingerprint(args.case, case), {"exact": bool(args.exact)}, args.resume, args.case)
     state.claim(planned, args.force, args.case)
-    documents = []
-    for arrangement, key, folder in zip(arrangements, keys, folders):
+    documents: dict[str, tuple[str, dict]] = {}
+    failures: dict[str, str] = {}
+    jobs = []
+    for key, _, arrangement, error in arrangements:
         if args.resume and state.is_finished(key):
-            print(f"racfield: {arrangement.title}: finished before, kept", file=sys.stderr)
-            documents.append((arrangement.variant, _finished_document(folder, key, args.case)))
-            continue
-        documents.append((arrangement.variant, _run_one(arrangement, folder, args, state, key)))
-    if case.variants:
-        written = write_comparison(documents, out, case.compare_frequency)
+            print(f"racfield: {names[key] or case.title}: finished before, kept", file=sys.stderr)
+            documents[key] = (names[key], _finished_document(folders[key], key, args.case))
+        else:
+            jobs.append(Job(key, arrangement, error))
+    workers = args.workers if args.workers is not None else default_workers()
+    if not several or (workers == 1 and args.cluster is None):
+        for job in jobs:   # here, one after the other, every solved point kept as it comes
+            if job.case is None:
+                failures[job.key] = job.error
+                print(f"racfield: variant {names[job.key]} failed: {job.error}", file=sys.stderr)
+                continue
+            documents[job.key] = (names[job.key], _run_one(job.case, folders[job.key], args, state, job.key))
+    else:
+        cases = {job.key: job.case for job in jobs}
+
+        def finished(outcome: Outcome) -> None:
+            if outcome.error is not None:
+                failures[outcome.key] = outcome.error
+                print(f"racfield: variant {names[outcome.key]} failed: {outcome.error}", file=sys.stderr)
+                return
+            documents[outcome.key] = (names[outcome.key], _write_one(cases[outcome.key], outcome.sweep,
+                                                                     folders[outcome.key], args, state,
+                                                                     outcome.key))
+
+        run_jobs(jobs, bool(args.exact), workers, args.cluster, finished, quiet=args.quiet)
+    if several:
+        ordered = [documents[key] for key, _, _, _ in arrangements if key in documents]
+        failed = {names[key]: failures[key] for key, _, _, _ in arrangements if key in failures}
+        written = []
+        if ordered:
+            written += write_comparison(ordered, out, case.compare_frequency)
+            print(summary(ordered, case.compare_frequency))
+        written += write_study_table(case, ordered, failed, out)
         state.record(written)
-        print(summary(documents, case.compare_frequency))
         print("wrote: " + ", ".join(str(p) for p in written))
+        if failed:
+            print(f"racfield: {len(failed)} of {len(arrangements)} variants failed (see study.csv)", file=sys.stderr)
+            return EXIT_PARTIAL
     state.clear_points()
     return EXIT_OK
 
@@ -307,6 +371,11 @@ def parser() -> argparse.ArgumentParser:
                      help="finish an interrupted run in the same folder: only the missing frequencies and variants")
     run.add_argument("--force", action="store_true",
                      help="write even over files in the results folder that racfield did not write")
+    run.add_argument("--workers", type=int, metavar="N",
+                     help="variants run in a local pool of N worker processes (default: the machine's cores; "
+                          "1: one after the other in this process)")
+    run.add_argument("--cluster", metavar="ADDRESS",
+                     help="run the variants on an existing Dask scheduler, e.g. tcp://10.0.0.5:8786")
     run.add_argument("--check-mesh", action="store_true",
                      help="solve the highest frequency again with element sizes halved and report "
                           "the change of each winding's Rac (an estimate of the mesh error)")

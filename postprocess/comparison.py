@@ -151,12 +151,60 @@ def summary(documents: list[tuple[str, dict]], wanted: float | None) -> str:
     freqs = np.asarray(documents[0][1]["frequencies_hz"])
     at = compare_index(freqs, wanted)
     windings = list(documents[0][1]["windings"])
-    head = (f"{'variant':<16} " + " ".join(f"{n[:12] + ' Rac/Rdc':>20}" for n in windings)
+    head = (f"{'variant':<28} " + " ".join(f"{n[:12] + ' Rac/Rdc':>20}" for n in windings)
             + f" {'total loss':>12} {'leakage':>12}")
     lines = [f"comparison at {format_frequency(freqs[at])}:", head, "-" * len(head)]
     for row in table:
         ratios = " ".join(f"{'-' if row.rac_over_rdc[n][at] is None else f'{row.rac_over_rdc[n][at]:.4f}':>20}"
                           for n in windings)
         leak = "-" if row.leakage_l_h is None else f"{row.leakage_l_h[at] * 1e6:.4g} uH"
-        lines.append(f"{row.name[:16]:<16} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}")
+        lines.append(f"{row.name[:28]:<28} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}")
     return "\n".join(lines)
+
+
+#: the files :func:`write_study_table` writes
+STUDY_FILES = ("study.csv", "study.json")
+
+
+def write_study_table(case, documents: list[tuple[str, dict]], failed: dict[str, str],
+                      directory: Path) -> list[Path]:
+    """study.csv and study.json: one row per variant and frequency (the study's
+    values, each winding's Rac/Rdc and loss in W, the total, the leakage in H),
+    and one row with the error for every failed variant."""
+    points = {p.name: dict(p.values) for p in getattr(case, "study", ())}
+    keys = list(dict.fromkeys(k for values in points.values() for k in values)) or ["variant"]
+    windings = [w.name for w in case.windings]
+    table = {r.name: r for r in rows(documents)}
+    order = [name for name, _ in documents] + [n for n in failed if n not in dict(documents)]
+
+    def value(name: str, key: str) -> str:
+        if key == "variant" and not points:
+            return name
+        v = points.get(name, {}).get(key, "")
+        return v if isinstance(v, str) else json.dumps(v)
+
+    buffer = io.StringIO()
+    out = csv.writer(buffer, lineterminator="\n")
+    out.writerow(["variant", *keys, "frequency_hz", *[f"{w}_rac_over_rdc" for w in windings],
+                  *[f"{w}_loss_w" for w in windings], "total_loss_w", "leakage_l_h", "error"])
+    entries = []
+    docs = dict(documents)
+    for name in order:
+        values = [value(name, k) for k in keys]
+        if name in failed:
+            out.writerow([name, *values, "", *[""] * (2 * len(windings)), "", "", failed[name]])
+            entries.append({"variant": name, "values": dict(zip(keys, values)), "error": failed[name]})
+            continue
+        r, freqs = table[name], docs[name]["frequencies_hz"]
+        for i, f in enumerate(freqs):
+            out.writerow([name, *values, f"{f:.8g}",
+                          *["" if r.rac_over_rdc[w][i] is None else f"{r.rac_over_rdc[w][i]:.8g}" for w in windings],
+                          *[f"{r.loss_w[w][i]:.8g}" for w in windings], f"{r.total_loss_w[i]:.8g}",
+                          "" if r.leakage_l_h is None else f"{r.leakage_l_h[i]:.8g}", ""])
+        entries.append({"variant": name, "values": dict(zip(keys, values)), "error": None,
+                        "folder": folder_name(name), "frequencies_hz": freqs,
+                        "rac_over_rdc": r.rac_over_rdc, "loss_w": r.loss_w, "total_loss_w": r.total_loss_w,
+                        "leakage_l_h": r.leakage_l_h})
+    doc = {"keys": keys, "windings": windings, "variants": entries}
+    return [replace_text(directory / "study.csv", buffer.getvalue()),
+            replace_text(directory / "study.json", json.dumps(doc, indent=1) + "\n")]

@@ -302,12 +302,20 @@ def _check_text(case: Case) -> str:
 
 def command_check(args) -> int:
     case = _load(args.case)
-    for arrangement in variant_cases(case):
-        if arrangement.variant:
-            print(f"== variant {arrangement.variant}")
+    failed = []
+    for key, name, arrangement, error in _arrangements(case):
+        if name:
+            print(f"== variant {name}")
+        if arrangement is None:
+            print(f"refused: {error}")
+            failed.append(name)
+            continue
         print(_check_text(arrangement))
         if arrangement.waveform is not None:
             print(waveform_lines(arrangement))
+    if failed:
+        print(f"{len(failed)} study points are refused: {', '.join(failed)}")
+        return EXIT_PARTIAL
     print("case is valid")
     return EXIT_OK
 

@@ -41,6 +41,22 @@ def _factorize(matrix: sp.spmatrix):
                          panel_size=12, options={"SymmetricMode": True})
 
 
+def backward_error(matrix: sp.spmatrix, z: np.ndarray, rhs: np.ndarray) -> float:
+    """The componentwise relative backward error of a solution ``z`` of
+    ``matrix`` z = ``rhs`` (columns taken together): max over rows of
+    |A z - r|_i / (|A| |z| + |r|)_i (W. Oettli and W. Prager, 1964; N. J.
+    Higham, "Accuracy and Stability of Numerical Algorithms", 2002, 7.2).
+    The smallest relative change of the entries of A and r that makes z
+    exact: a few units of rounding (1e-16) for a sound solve.  Unlike the
+    plain ||A z - r|| / ||r||, it does not depend on how the rows are scaled
+    (here the current rows' right-hand side shrinks as 1/w while the field
+    rows carry terms of order ||A|| ||z||)."""
+    misfit = np.abs(matrix @ z - rhs)
+    magnitude = abs(matrix) @ np.abs(z) + np.abs(rhs)
+    ratio = np.divide(misfit, magnitude, out=np.where(misfit > 0.0, np.inf, 0.0), where=magnitude > 0.0)
+    return float(ratio.max()) if ratio.size else 0.0
+
+
 def _aligned(parts: list[sp.coo_matrix], size: int) -> tuple[np.ndarray, np.ndarray, list[np.ndarray]]:
     """CSC pattern (indptr, indices) of the union of ``parts`` (size x size)
     and every part's values on it (duplicates summed)."""
@@ -95,7 +111,7 @@ class BorderedSystem:
             data = data + self.per_inverse_omega / (1j * omega)
         size = self.n + self.nc
         matrix = sp.csc_matrix((data, self.indices, self.indptr), shape=(size, size))
-        return BorderedFactorization(self, omega, _factorize(matrix))
+        return BorderedFactorization(self, omega, _factorize(matrix), matrix)
 
 
 class BorderedFactorization:
@@ -104,12 +120,15 @@ class BorderedFactorization:
 
         s S a - s B v = r1,   -s B^T a + s D v = r2,
 
-    and ``schur`` is Sigma = s (D - B^T S^-1 B) (Nc, Nc) in conductor order."""
+    and ``schur`` is Sigma = s (D - B^T S^-1 B) (Nc, Nc) in conductor order.
+    ``matrix``: the bordered matrix that was factorized (in its fill-reducing
+    order), kept for the residual of :meth:`solve_checked`."""
 
-    def __init__(self, system: BorderedSystem, omega: float, lu) -> None:
+    def __init__(self, system: BorderedSystem, omega: float, lu, matrix: sp.spmatrix | None = None) -> None:
         self.n, self.nc, self.scale, self.order = system.n, system.nc, system.scale, system.order
         self.omega = omega
         self.lu = lu
+        self.matrix = matrix
 
     @cached_property
     def schur(self) -> np.ndarray:
@@ -140,8 +159,20 @@ class BorderedFactorization:
 
     def solve(self, r1: np.ndarray, r2: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """(a, v) for right-hand sides ``r1`` (n, ...) and ``r2`` (Nc, ...)."""
-        z = self._raw_solve(np.concatenate([np.asarray(r1, dtype=complex), np.asarray(r2, dtype=complex)]))
-        return z[:self.n], z[self.n:]
+        a, v, _ = self.solve_checked(r1, r2, check=False)
+        return a, v
+
+    def solve_checked(self, r1: np.ndarray, r2: np.ndarray,
+                      check: bool = True) -> tuple[np.ndarray, np.ndarray, float | None]:
+        """(a, v, residual): :meth:`solve` and the solve's residual, its
+        componentwise backward error on the bordered matrix (see
+        :func:`backward_error`; None when not ``check``ed or no matrix was kept)."""
+        rhs = np.concatenate([np.asarray(r1, dtype=complex), np.asarray(r2, dtype=complex)])
+        z = self._raw_solve(rhs)
+        residual = None
+        if check and self.matrix is not None:
+            residual = backward_error(self.matrix, z[self.order], rhs[self.order])
+        return z[:self.n], z[self.n:], residual
 
 
 class Response:
@@ -150,7 +181,9 @@ class Response:
     ``admittance`` (Nc, Nc) S*m; ``applied_current`` (Nc,) the currents an
     applied field drives with u = 0 (zeros when there is none);
     ``flux_coupling`` (Nc, Nc) B^T S^-1 B at 0 Hz only (L = G^-1 B^T K^-1 B
-    G^-1 per metre), else None.
+    G^-1 per metre), else None.  ``residual``: the largest residual (backward
+    error, see :func:`backward_error`) of the solves made for :meth:`field`
+    and :meth:`potential` so far (None before the first).
     """
 
     def __init__(self, factorization: BorderedFactorization, applied_rhs: np.ndarray | None = None,
@@ -159,6 +192,7 @@ class Response:
         self.factorization = f
         self.omega = f.omega
         self.applied_rhs = applied_rhs
+        self.residual: float | None = None
         if f.omega > 0.0:
             self.admittance = (1j * f.omega / f.scale) * f.schur
             self.flux_coupling = None
@@ -194,8 +228,13 @@ class Response:
         r1 = np.zeros((f.n,) + i.shape[1:], dtype=complex)
         if self.applied_rhs is not None:
             r1 += f.scale * (self.applied_rhs if i.ndim == 1 else self.applied_rhs[:, None])
-        a, v = f.solve(r1, f.scale * i / (1j * f.omega))
+        a, v, residual = f.solve_checked(r1, f.scale * i / (1j * f.omega))
+        self._record(residual)
         return v, a
+
+    def _record(self, residual: float | None) -> None:
+        if residual is not None:
+            self.residual = residual if self.residual is None else max(self.residual, residual)
 
     def potential(self, voltages: np.ndarray) -> np.ndarray:
         """Vector potential (Wb/m) at the free nodes for conductor ``voltages``
@@ -206,7 +245,8 @@ class Response:
         r1 = np.zeros((f.n,) + u.shape[1:], dtype=complex)
         if self.applied_rhs is not None:
             r1 += f.scale * (self.applied_rhs if u.ndim == 1 else self.applied_rhs[:, None])
-        a, _ = f.solve(r1, f.schur @ (u - v0))
+        a, _, residual = f.solve_checked(r1, f.schur @ (u - v0))
+        self._record(residual)
         return a
 
 
@@ -225,13 +265,15 @@ class StrandedResponse:
 
     ``impedance`` (Nc, Nc) ohm/m, the full conductor impedance matrix (solid
     and stranded); ``potential_per_current`` (n, Nc) Wb/m per A of each
-    conductor; ``inductance`` (Nc, Nc) H/m.
+    conductor; ``inductance`` (Nc, Nc) H/m; ``residual`` the backward error
+    (see :func:`backward_error`) of the solves for the conductor columns.
     """
 
     omega: float
     impedance: np.ndarray
     potential_per_current: np.ndarray
     inductance: np.ndarray
+    residual: float | None = None
 
 
 def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
@@ -252,9 +294,11 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
     system = (scale * stiffness + (1j * omega * scale) * mass).tocsc()
     order = np.arange(system.shape[0]) if ordering is None else ordering
     lu = _factorize(system[order][:, order])
+    rhs = scale * coupling.toarray().astype(complex)
     with threadpool_limits(limits=1, user_api="blas"):
         x = np.empty((system.shape[0], coupling.shape[1]), dtype=complex)
-        x[order] = lu.solve(scale * coupling.toarray().astype(complex)[order])
+        x[order] = lu.solve(rhs[order])
+    residual = backward_error(system, x, rhs)
     c = coupling.T.tocsr() @ x
     s = np.nonzero(~stranded)[0]
     t = np.nonzero(stranded)[0]
@@ -276,4 +320,4 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
         # flux per unit current: solid columns carry sigma I / (sigma S), stranded I / A
         d = np.where(stranded, 1.0, 1.0 / np.where(stranded, 1.0, conductance))
         inductance = (d[:, None] * c.real) * d[None, :]
-    return StrandedResponse(omega, z, per_current, inductance)
+    return StrandedResponse(omega, z, per_current, inductance, residual)

@@ -61,7 +61,9 @@ class WindingSolution:
     conductor k for winding currents i is Re(i^H Q_k i) (see README for the
     ideal-core window, where only ampere-turn-balanced i are physical);
     ``loss_per_m`` (Nc,) W/m at ``winding_currents``; ``potential`` (nodes,)
-    Wb/m and ``voltage_per_m`` (Nc,) V/m at those currents.
+    Wb/m and ``voltage_per_m`` (Nc,) V/m at those currents.  ``residual``:
+    the largest backward error of the full solves behind it
+    (:func:`fem.harmonic.backward_error`; None for a reduced-model response).
     """
 
     frequency: float
@@ -72,6 +74,7 @@ class WindingSolution:
     voltage_per_m: np.ndarray
     potential: np.ndarray | None = None
     currents: np.ndarray | None = None     #: the column currents used (A RMS)
+    residual: float | None = None
 
 
 class WindowProblem:
@@ -331,7 +334,8 @@ class WindowProblem:
         i = np.asarray(winding_currents, dtype=complex)
         loss = np.einsum("i,kij,j->k", i.conj(), q, i).real
         potential = unit_potentials @ i if keep_field else None
-        return WindingSolution(frequency, impedance, inductance, q, loss, unit_voltages @ i, potential, i)
+        return WindingSolution(frequency, impedance, inductance, q, loss, unit_voltages @ i, potential, i,
+                               response.residual)
 
     def _solve_windings_stranded(self, frequency: float, connection: np.ndarray, winding_currents,
                                  keep_field: bool) -> WindingSolution:
@@ -355,7 +359,7 @@ class WindowProblem:
         loss = np.einsum("i,kij,j->k", i.conj(), q, i).real
         potential = unit_potentials @ i if keep_field else None
         return WindingSolution(frequency, impedance, response.inductance, q, loss, unit_voltages @ i,
-                               potential, i)
+                               potential, i, response.residual)
 
     def current_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray,
                         currents: np.ndarray | None = None) -> np.ndarray:

@@ -40,6 +40,7 @@ class ReducedResponse:
         self.admittance = admittance
         self.applied_current = np.zeros(admittance.shape[0], dtype=complex)
         self.flux_coupling = None
+        self.residual = None    #: no full solve behind a reduced response
         self._basis = basis
         self._reduced = reduced
 

@@ -4,6 +4,7 @@ factorizations (reduced; see :func:`reduced_plan`)."""
 
 from __future__ import annotations
 
+import math
 import time
 from dataclasses import dataclass, field
 from typing import Callable
@@ -15,6 +16,7 @@ from geometry.layout import Conductor, dc_resistance, place
 from geometry.materials import material, skin_depth
 from geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
+from .guards import sweep_warnings
 from .mmf import MmfProfile, mmf_profile
 from .parallel import Excitation, excitation_basis, sharing
 from .problem import WindowProblem
@@ -76,6 +78,23 @@ class SweepResult:
     basis_currents: np.ndarray | None = None   #: (Nf, Ne) A RMS in the excitation columns
     #: {"method": "reduced"|"point-by-point", "expansion_hz": [...], "max_check_deviation": float|None}
     sweep_info: dict = field(default_factory=dict)
+    #: numerical warnings, {"kind", "frequency_hz", "message"} each (see :mod:`fem.guards`)
+    warnings: list[dict] = field(default_factory=list)
+
+
+@dataclass
+class PointResult:
+    """One solved frequency of a sweep (see :class:`SweepResult` for the arrays'
+    meaning): ``basis_currents`` (Ne,), ``loss_per_m`` (Nc,),
+    ``impedance_per_m`` and ``inductance_per_m`` (Nc, Nc),
+    ``loss_matrix_per_m`` (Nc, Ne, Ne)."""
+
+    basis_currents: np.ndarray
+    loss_per_m: np.ndarray
+    impedance_per_m: np.ndarray
+    inductance_per_m: np.ndarray
+    loss_matrix_per_m: np.ndarray
+    residual: float = math.nan   #: backward error of the point's full solve (NaN: reduced, none)
 
 
 #: sweeps with more frequencies than this use the reduced model by default
@@ -166,9 +185,10 @@ def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarr
 
 
 def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
-    """The window mesh, sized from the smallest skin depth at the highest frequency."""
+    """The window mesh, sized from the smallest skin depth at the mesh frequency
+    (``[mesh] frequency``, else the highest frequency of the case)."""
     rho = conductor_resistivities(case, conductors)
-    delta = skin_depth(float(rho.min()), max(case.frequencies))
+    delta = skin_depth(float(rho.min()), case.mesh_frequency)
     sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
                       sizing, case.mesh.far_radius_factor, case.core,
@@ -188,11 +208,17 @@ def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
 
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
-              method: str = "auto") -> SweepResult:
+              method: str = "auto", done: dict[int, PointResult] | None = None,
+              on_point: Callable[[int, PointResult, Callable[[], "SweepResult"]], None] | None = None
+              ) -> SweepResult:
     """Place, mesh, assemble once and solve every frequency of ``case``.
 
     ``method``: "auto" (reduced model for long sweeps without litz bundles),
-    "reduced" or "exact" (one factorization per frequency)."""
+    "reduced" or "exact" (one factorization per frequency).  ``done``: points
+    already solved (by index, e.g. from an interrupted run), taken as they
+    are; the last frequency is solved again all the same, for its field.
+    ``on_point(index, point, partial)`` is called after every newly solved
+    point; ``partial()`` gives the sweep of the points solved so far."""
     timings = {}
     start = time.perf_counter()
     conductors = place(case)
@@ -229,24 +255,50 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     inductance = np.zeros((nf, nc, nc))
     loss_matrix = np.zeros((nf, nc, nw, nw), dtype=complex)
     snapshot = None
+    done = dict(done or {})
+    finished = np.zeros(nf, dtype=bool)
+    residual = np.full(nf, math.nan)
+
+    def store(i: int, point: PointResult) -> None:
+        basis_currents[i], loss[i] = point.basis_currents, point.loss_per_m
+        impedance[i], inductance[i] = point.impedance_per_m, point.inductance_per_m
+        loss_matrix[i] = point.loss_matrix_per_m
+        residual[i] = float(point.residual)
+        finished[i] = True
+
+    for i, point in done.items():
+        store(i, point)
     start = time.perf_counter()
     model = None
     sweep_info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
+    residuals = []   # (Hz, backward error or None) of the solves, for the guards
     if use_reduced(case, conductors, method):
         model, chosen, change = reduced_plan(problem, freqs, connection)
         sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
                       "max_check_deviation": None, "reduced_size": model.size}
         timings["reduced_build_s"] = time.perf_counter() - start
+    offset = case.window.inner_radius if case.model.axisymmetric else None
+    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
+
+    def result(index: np.ndarray | slice = slice(None), warnings: list | None = None) -> SweepResult:
+        return SweepResult(freqs[index], conductors, rho, currents, rdc, loss[index], impedance[index],
+                           problem.areas / true_area - 1.0, inductance[index], loss_matrix[index], names,
+                           connection, problem.unknowns, window_mesh.elements, window_mesh.surface_size,
+                           timings, snapshot, excitation, basis_currents[index], sweep_info, warnings or [])
+
     points_start = time.perf_counter()
     for i, f in enumerate(freqs):
         last = i == nf - 1
+        if finished[i] and not last:
+            if progress:
+                progress(i + 1, nf, f)
+            continue
         response = model.respond(2.0 * np.pi * f) if model is not None else None
         solution = problem.solve_windings(f, connection, share, keep_field=last, response=response)
-        basis_currents[i] = solution.currents
-        loss[i] = solution.loss_per_m
-        impedance[i] = solution.impedance_per_m
-        inductance[i] = solution.inductance_per_m
-        loss_matrix[i] = solution.loss_matrix_per_m
+        point = PointResult(solution.currents, solution.loss_per_m, solution.impedance_per_m,
+                            solution.inductance_per_m, solution.loss_matrix_per_m,
+                            math.nan if solution.residual is None else float(solution.residual))
+        store(i, point)
         if last:
             mmf = None
             if case.window.boundary != "open":
@@ -258,6 +310,8 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
                 f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
                 problem.current_density(f, solution.voltage_per_m, solution.potential,
                                          connection @ solution.currents), mmf)
+        if on_point and i not in done:
+            on_point(i, point, lambda: result(np.nonzero(finished)[0]))
         if progress:
             progress(i + 1, nf, f)
     if model is not None:
@@ -269,6 +323,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         deviation = 0.0
         for i in order:
             full = problem.solve_windings(freqs[i], connection, share)
+            residuals.append((freqs[i], full.residual))
             exact_w = members.T @ full.loss_per_m
             reduced_w = members.T @ loss[i]
             ok = np.abs(exact_w) > 0
@@ -283,9 +338,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         sweep_info["max_check_deviation"] = deviation
         timings["reduced_check_s"] = time.perf_counter() - check_start
     timings["solve_s"] = time.perf_counter() - start
-    offset = case.window.inner_radius if case.model.axisymmetric else None
-    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
-    return SweepResult(freqs, conductors, rho, currents, rdc, loss, impedance,
-                       problem.areas / true_area - 1.0, inductance, loss_matrix, names, connection,
-                       problem.unknowns, window_mesh.elements,
-                       window_mesh.surface_size, timings, snapshot, excitation, basis_currents, sweep_info)
+    # the points' residuals (restored points keep theirs) before the self-check's
+    residuals[:0] = [(float(f), None if math.isnan(r) else float(r)) for f, r in zip(freqs, residual)]
+    warnings = sweep_warnings(case, conductors, rho, window_mesh, freqs, residuals, sweep_info)
+    return result(warnings=warnings)

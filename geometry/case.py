@@ -18,6 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import CaseError
+from .study import VARIANT_KEY, StudyPoint, point_document, study_points
 from .materials import MATERIALS, ALIASES
 from .units import EXAMPLES, in_range, quantity, short
 from .waveform import (Spectrum, Waveform, WaveformSettings, fundamental_phasor, parse_settings,
@@ -169,6 +170,7 @@ class Core:
 class MeshOptions:
     density: float = 1.0           #: >1 finer, <1 coarser than the default sizing
     far_radius_factor: float = 5.0  #: open boundary: far circle / window half-diagonal
+    frequency: float | None = None  #: Hz, size the mesh for this frequency (None: the highest solved)
 
 
 @dataclass(frozen=True)
@@ -216,9 +218,17 @@ class Case:
     parallel: tuple["Parallel", ...] = ()   #: windings with conductors in parallel
     variant_index: int = 0                  #: 1-based position in [[variant]]; 0 for the base
     waveform: WaveformSettings | None = None  #: [waveform] and the harmonics solved (windings with waveforms)
+    study: tuple[StudyPoint, ...] = ()      #: [study] points (see geometry/study.py)
+    source: dict | None = None              #: the case document without [study], for the study points
+    allow_outside_files: bool = False       #: files it names may lie outside the case folder (study points too)
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)
+
+    @property
+    def mesh_frequency(self) -> float:
+        """Hz the mesh is sized for: ``[mesh] frequency``, else the highest solved frequency."""
+        return self.mesh.frequency if self.mesh.frequency is not None else max(self.frequencies)
 
 
 class _Table:
@@ -466,15 +476,38 @@ def _list_of_tables(doc: _Table, name: str) -> list[_Table]:
 
 
 def parse_case(doc: dict, path: str = "", allow_outside_files: bool = False) -> Case:
-    """Build a :class:`Case` from a parsed TOML document.
+    """Build a :class:`Case` from a parsed TOML document.  With a ``[study]``
+    table the case is the document without it (checked whole) and carries
+    the study's points, each to be made a case by :func:`study_case`.
 
     ``path``: the case file (its folder is where files the case names are
     found; the current folder without it).  ``allow_outside_files``: read such
-    files also when they lie outside that folder (refused by default)."""
+    files also when they lie outside that folder (refused by default; the
+    study's points inherit it)."""
     try:
+        if isinstance(doc, dict) and "study" in doc:
+            points = study_points(doc["study"])
+            base = {k: v for k, v in doc.items() if k != "study"}
+            case = _parse(base, path, allow_outside_files)
+            if case.variants and not any(k == VARIANT_KEY for p in points for k, _ in p.values):
+                raise CaseError("study", "a case with [[variant]] tables needs a study axis on \"variant\"",
+                                'add [[study.axis]] key = "variant", or remove the [[variant]] tables')
+            return replace(case, study=tuple(points), source=base)
         return _parse(doc, path, allow_outside_files)
     except CaseError as error:
         raise error.in_file(path) if path else error
+
+
+def study_case(case: Case, point: StudyPoint) -> Case:
+    """The case of one study point (CaseError, naming the file, if its document is bad)."""
+    from .layout import place  # layout imports this module
+
+    study = parse_case(point_document(case.source, point), case.path, case.allow_outside_files)
+    try:
+        place(study)
+    except CaseError as error:
+        raise error.in_file(case.path) if case.path else error
+    return replace(study, variant=point.name)
 
 
 def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
@@ -529,12 +562,14 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     if far > 100.0:
         raise CaseError("mesh.far_radius_factor", f"{far:g} is more than 100",
                         "use 100 or less (default 5)")
+    mesh_frequency = (mesh_table.quantity("frequency", "frequency", positive=True)
+                      if mesh_table.has("frequency") else None)
     mesh_table.close()
     top.close()
 
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
-                MeshOptions(density, far), path, core, _notes(model) + wave_notes, tuple(variants), compare_frequency,
-                parallel=tuple(parallel), waveform=settings)
+                MeshOptions(density, far, mesh_frequency), path, core, _notes(model) + wave_notes, tuple(variants), compare_frequency,
+                parallel=tuple(parallel), waveform=settings, allow_outside_files=allow_outside_files)
     for arrangement in variant_cases(case):
         _check_arrangement(arrangement)
     return case

@@ -2,7 +2,9 @@
 ``report`` writes report.html from a results folder.
 
 Exit status: 0 done; 1 internal failure (a bug: please report it);
-2 bad input (one line on stderr naming the file, the key and the fix).
+2 bad input (one line on stderr naming the file, the key and the fix);
+3 a run of several variants finished but some failed (their errors are in study.csv);
+130 interrupted (``racfield run --resume`` finishes an interrupted run).
 """
 
 from __future__ import annotations
@@ -16,22 +18,27 @@ import sys
 import time
 from pathlib import Path
 
+from threadpoolctl import threadpool_limits
+
 from fem.sweep import conductor_resistivities, run_sweep
-from geometry.case import Case, load_case, variant_cases, winding_turns
+from geometry.case import Case, load_case, study_case, variant_cases, winding_turns
 from geometry.errors import CaseError
 from geometry.layout import dc_resistance, place
 from geometry.materials import material, skin_depth
 
 from geometry.units import quantity
 
-from .comparison import folder_name, summary, write_comparison
+from .checkpoint import RunState, fingerprint
+from .comparison import COMPARISON_FILES, STUDY_FILES, folder_name, summary, write_comparison, write_study_table
+from .execution import Job, Outcome, default_workers, run_jobs
 from .harmonics import harmonics_table, waveform_lines
-from .html_report import write_report
+from .html_report import REPORT_NAME, write_report
 from .impedance import losses_from_document
-from .report import CAUTION, build_report, format_frequency, parallel_document
-from .writers import write_all
+from .mesh_check import mesh_check, mesh_check_line
+from .report import CAUTION, build_report, format_frequency, parallel_document, results_document
+from .writers import WRITERS, results_json, write_all
 
-EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT = 0, 1, 2
+EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT, EXIT_PARTIAL = 0, 1, 2, 3
 
 
 def _progress(stream):
@@ -99,14 +106,47 @@ def _load(path: str, allow_outside_files: bool = False) -> Case:
     return case
 
 
-def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
-    """Solve one arrangement, write its result files into ``out``, print its table."""
+#: a partial results.json is rewritten at most this often during a sweep (s)
+PARTIAL_EVERY_S = 2.0
+
+
+def _run_one(case: Case, out: Path, args, state: RunState, key: str) -> dict:
+    """Solve one arrangement (resuming its solved points when asked), write its
+    result files into ``out``, print its table; returns its results document."""
     out.mkdir(parents=True, exist_ok=True)
     print(f"racfield: {case.title}", file=sys.stderr)
-    sweep = run_sweep(case, progress=None if quiet else _progress(sys.stderr),
-                      method="exact" if exact else "auto")
+    done = state.load_points(key) if args.resume else {}
+    if done:
+        print(f"racfield: resuming: {len(done)} of {len(case.frequencies)} frequencies already solved",
+              file=sys.stderr)
+    last_partial = [-math.inf]
+
+    def keep(index: int, point, partial) -> None:
+        # every solved point is kept at once; results.json follows at most every PARTIAL_EVERY_S
+        state.save_point(key, index, point)
+        now = time.perf_counter()
+        if now - last_partial[0] >= PARTIAL_EVERY_S:
+            last_partial[0] = now
+            state.record(results_json.write(build_report(case, partial()), out, len(case.frequencies)))
+
+    # one BLAS thread, as in a worker of the pool: every way of running gives the same numbers
+    with threadpool_limits(limits=1):
+        sweep = run_sweep(case, progress=None if args.quiet else _progress(sys.stderr),
+                          method="exact" if args.exact else "auto", done=done, on_point=keep)
+    return _write_one(case, sweep, out, args, state, key)
+
+
+def _write_one(case: Case, sweep, out: Path, args, state: RunState, key: str) -> dict:
+    """Write one solved arrangement's files and print its table; returns its results document."""
+    out.mkdir(parents=True, exist_ok=True)
+    for warning in sweep.warnings:
+        print(f"racfield: warning: {warning['message']}", file=sys.stderr)
     report = build_report(case, sweep)
+    if args.check_mesh:
+        report.mesh_check = mesh_check(report)
     written = write_all(report, out)
+    state.record(written)
+    state.finish(key)
     print(f"== {case.title}")
     print(_summary_table(report))
     print(_inductance_lines(report))
@@ -120,9 +160,37 @@ def _run_one(case: Case, out: Path, quiet: bool, exact: bool = False):
     if info.get("method") == "reduced":
         print(f"sweep: reduced model from {len(info['expansion_hz'])} full solves, "
               f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
+    if report.mesh_check is not None:
+        print(mesh_check_line(report.mesh_check))
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
-    return report
+    return results_document(report)
+
+
+def _finished_document(folder: Path, key: str, case_file: str) -> dict:
+    """The results document of an arrangement a resumed run finished before."""
+    try:
+        return json.loads((folder / "results.json").read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        raise CaseError("--resume", f"{folder / 'results.json'} of a finished variant cannot be read",
+                        "run without --resume to solve everything again", case_file) from None
+
+
+def _arrangements(case: Case) -> list[tuple[str, str | None, Case | None, str | None]]:
+    """(folder key, name, case or None, error line) of every arrangement: the
+    case alone, its [[variant]] arrangements, or its [study] points (a bad
+    point is kept with its error, to fail alone)."""
+    if case.study:
+        out = []
+        for point in case.study:
+            try:
+                out.append((folder_name(point.name), point.name, study_case(case, point), None))
+            except CaseError as error:
+                out.append((folder_name(point.name), point.name, None, error.line()))
+        return out
+    if case.variants:
+        return [(folder_name(a.variant), a.variant, a, None) for a in variant_cases(case)]
+    return [("", None, case, None)]
 
 
 def command_run(args) -> int:
@@ -135,16 +203,64 @@ def command_run(args) -> int:
     except OSError as error:
         raise CaseError("--out", f"cannot create {out} ({error.strerror})", "name a writable folder",
                         args.case) from None
-    arrangements = variant_cases(case)
-    if not case.variants:
-        _run_one(case, out, args.quiet, args.exact)
-        return EXIT_OK
-    reports = []
-    for arrangement in arrangements:
-        reports.append(_run_one(arrangement, out / folder_name(arrangement.variant), args.quiet, args.exact))
-    written = write_comparison(reports, out, case.compare_frequency)
-    print(summary(reports, case.compare_frequency))
-    print("wrote: " + ", ".join(str(p) for p in written))
+    if args.workers is not None and args.workers < 1:
+        raise CaseError("--workers", f"{args.workers} workers", "give 1 or more (1 runs the variants one by one here)",
+                        args.case)
+    arrangements = _arrangements(case)
+    several = len(arrangements) > 1 or bool(case.study)
+    folders = {key: out / key if key else out for key, _, _, _ in arrangements}
+    names = {key: name for key, name, _, _ in arrangements}
+    planned = [folder / name for folder in folders.values() for name in WRITERS]
+    if several:
+        planned += [out / name for name in COMPARISON_FILES + STUDY_FILES]
+    state = RunState(out)
+    # every check comes before the first solve: nothing computed is lost to a refusal
+    state.start(fingerprint(args.case, case), {"exact": bool(args.exact)}, args.resume, args.case)
+    state.claim(planned, args.force, args.case)
+    documents: dict[str, tuple[str, dict]] = {}
+    failures: dict[str, str] = {}
+    jobs = []
+    for key, _, arrangement, error in arrangements:
+        if args.resume and state.is_finished(key):
+            print(f"racfield: {names[key] or case.title}: finished before, kept", file=sys.stderr)
+            documents[key] = (names[key], _finished_document(folders[key], key, args.case))
+        else:
+            jobs.append(Job(key, arrangement, error))
+    workers = args.workers if args.workers is not None else default_workers()
+    if not several or (workers == 1 and args.cluster is None):
+        for job in jobs:   # here, one after the other, every solved point kept as it comes
+            if job.case is None:
+                failures[job.key] = job.error
+                print(f"racfield: variant {names[job.key]} failed: {job.error}", file=sys.stderr)
+                continue
+            documents[job.key] = (names[job.key], _run_one(job.case, folders[job.key], args, state, job.key))
+    else:
+        cases = {job.key: job.case for job in jobs}
+
+        def finished(outcome: Outcome) -> None:
+            if outcome.error is not None:
+                failures[outcome.key] = outcome.error
+                print(f"racfield: variant {names[outcome.key]} failed: {outcome.error}", file=sys.stderr)
+                return
+            documents[outcome.key] = (names[outcome.key], _write_one(cases[outcome.key], outcome.sweep,
+                                                                     folders[outcome.key], args, state,
+                                                                     outcome.key))
+
+        run_jobs(jobs, bool(args.exact), workers, args.cluster, finished, quiet=args.quiet)
+    if several:
+        ordered = [documents[key] for key, _, _, _ in arrangements if key in documents]
+        failed = {names[key]: failures[key] for key, _, _, _ in arrangements if key in failures}
+        written = []
+        if ordered:
+            written += write_comparison(ordered, out, case.compare_frequency)
+            print(summary(ordered, case.compare_frequency))
+        written += write_study_table(case, ordered, failed, out)
+        state.record(written)
+        print("wrote: " + ", ".join(str(p) for p in written))
+        if failed:
+            print(f"racfield: {len(failed)} of {len(arrangements)} variants failed (see study.csv)", file=sys.stderr)
+            return EXIT_PARTIAL
+    state.clear_points()
     return EXIT_OK
 
 
@@ -186,12 +302,20 @@ def _check_text(case: Case) -> str:
 
 def command_check(args) -> int:
     case = _load(args.case, args.allow_outside_files)
-    for arrangement in variant_cases(case):
-        if arrangement.variant:
-            print(f"== variant {arrangement.variant}")
+    failed = []
+    for key, name, arrangement, error in _arrangements(case):
+        if name:
+            print(f"== variant {name}")
+        if arrangement is None:
+            print(f"refused: {error}")
+            failed.append(name)
+            continue
         print(_check_text(arrangement))
         if arrangement.waveform is not None:
             print(waveform_lines(arrangement))
+    if failed:
+        print(f"{len(failed)} study points are refused: {', '.join(failed)}")
+        return EXIT_PARTIAL
     print("case is valid")
     return EXIT_OK
 
@@ -230,7 +354,14 @@ def command_loss(args) -> int:
 
 
 def command_report(args) -> int:
-    written = write_report(Path(args.results), Path(args.out) if args.out else None)
+    folder = Path(args.results)
+    target = Path(args.out) if args.out else folder / REPORT_NAME
+    state = RunState(target.parent) if target.parent.is_dir() else None
+    if state is not None:
+        state.claim([target], args.force, str(folder))
+    written = write_report(folder, target)
+    if state is not None and state.exists:
+        state.record([written])
     print(written)
     return EXIT_OK
 
@@ -246,6 +377,18 @@ def parser() -> argparse.ArgumentParser:
                      help="one full solve per frequency (no reduced-order sweep)")
     run.add_argument("--allow-outside-files", action="store_true",
                      help="read files the case names also outside the case file's folder")
+    run.add_argument("--resume", action="store_true",
+                     help="finish an interrupted run in the same folder: only the missing frequencies and variants")
+    run.add_argument("--force", action="store_true",
+                     help="write even over files in the results folder that racfield did not write")
+    run.add_argument("--workers", type=int, metavar="N",
+                     help="variants run in a local pool of N worker processes (default: the machine's cores; "
+                          "1: one after the other in this process)")
+    run.add_argument("--cluster", metavar="ADDRESS",
+                     help="run the variants on an existing Dask scheduler, e.g. tcp://10.0.0.5:8786")
+    run.add_argument("--check-mesh", action="store_true",
+                     help="solve the highest frequency again with element sizes halved and report "
+                          "the change of each winding's Rac (an estimate of the mesh error)")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")
@@ -260,6 +403,7 @@ def parser() -> argparse.ArgumentParser:
     report = sub.add_parser("report", help="one self-contained HTML page (report.html) from a results folder")
     report.add_argument("results", metavar="RESULTS_DIR", help="results folder written by racfield run")
     report.add_argument("--out", help="HTML file to write (default: RESULTS_DIR/report.html)")
+    report.add_argument("--force", action="store_true", help="write even over a file racfield did not write")
     report.set_defaults(handler=command_report)
     return top
 
@@ -276,7 +420,9 @@ def main(argv: list[str] | None = None) -> int:
     except BrokenPipeError:  # output piped into a program that stopped reading
         return EXIT_OK
     except KeyboardInterrupt:
-        print("racfield: interrupted", file=sys.stderr)
+        hint = (f"; the solved points are kept: racfield run {args.case} --resume finishes the run"
+                if getattr(args, "command", "") == "run" else "")
+        print(f"racfield: interrupted{hint}", file=sys.stderr)
         return 130
     except Exception as error:  # a bug, not bad input
         if os.environ.get("RACFIELD_DEBUG"):

@@ -1,6 +1,8 @@
 """Comparison of the variants of one case: table (CSV, JSON) and plots.
 
-Each variant is a complete :class:`~postprocess.report.Report`; this module
+Each variant is given by its results document (results.json, see
+:func:`postprocess.report.results_document`), so that variants finished by an
+earlier, interrupted run take part without being solved again; this module
 only lines them up.  Losses in W at the case currents, leakage in H.
 """
 
@@ -18,7 +20,7 @@ from matplotlib import colormaps
 from matplotlib.ticker import EngFormatter, NullFormatter
 
 from .plotting import LINE_MAP, line_colours, new_figure, save
-from .report import Report, format_frequency
+from .report import format_frequency
 from .atomic import replace_text
 
 
@@ -38,15 +40,21 @@ def folder_name(variant: str) -> str:
     return re.sub(r"[^A-Za-z0-9._-]+", "_", variant).strip("_") or "variant"
 
 
-def rows(reports: list[Report]) -> list[VariantRow]:
-    out = []
-    for report in reports:
-        leakage = report.magnetic.get("leakage")
-        out.append(VariantRow(report.case.variant or "base",
-                              {w.name: w.rac_over_rdc for w in report.windings},
-                              {w.name: w.loss_w for w in report.windings},
-                              report.total_loss_w, None if leakage is None else leakage["l_h"]))
-    return out
+#: the files :func:`write_comparison` writes
+COMPARISON_FILES = ("comparison.csv", "comparison.json", "rac_over_rdc_variants.png", "loss_by_variant.png")
+
+
+def row(variant: str, doc: dict) -> VariantRow:
+    """A variant's row from its results document."""
+    leakage = doc.get("leakage")
+    windings = doc["windings"]
+    return VariantRow(variant or "base", {n: w["rac_over_rdc"] for n, w in windings.items()},
+                      {n: w["loss_w"] for n, w in windings.items()}, doc["total_loss_w"],
+                      None if leakage is None else leakage["l_h"])
+
+
+def rows(documents: list[tuple[str, dict]]) -> list[VariantRow]:
+    return [row(variant, doc) for variant, doc in documents]
 
 
 def compare_index(frequencies: np.ndarray, wanted: float | None) -> int:
@@ -57,12 +65,14 @@ def compare_index(frequencies: np.ndarray, wanted: float | None) -> int:
     return int(np.nanargmin(np.abs(np.log(positive / wanted))))
 
 
-def write_comparison(reports: list[Report], directory: Path, wanted: float | None) -> list[Path]:
-    """comparison.csv, comparison.json, rac_over_rdc_variants.png and loss_by_variant.png."""
-    table = rows(reports)
-    freqs = np.asarray(reports[0].sweep.frequencies)
+def write_comparison(documents: list[tuple[str, dict]], directory: Path, wanted: float | None) -> list[Path]:
+    """comparison.csv, comparison.json, rac_over_rdc_variants.png and loss_by_variant.png
+    from (variant, results document) pairs."""
+    table = rows(documents)
+    first = documents[0]
+    freqs = np.asarray(first[1]["frequencies_hz"])
     at = compare_index(freqs, wanted)
-    windings = [w.name for w in reports[0].windings]
+    windings = list(first[1]["windings"])
 
     buffer = io.StringIO()
     out = csv.writer(buffer, lineterminator="\n")
@@ -80,12 +90,12 @@ def write_comparison(reports: list[Report], directory: Path, wanted: float | Non
                                  "total_loss_w": r.total_loss_w, "leakage_l_h": r.leakage_l_h,
                                  "folder": folder_name(r.name)} for r in table}}
     written.append(replace_text(directory / "comparison.json", json.dumps(doc, indent=1) + "\n"))
-    written.append(_ratio_plot(reports[0], table, windings, freqs, directory))
-    written.append(_loss_bars(reports[0], table, windings, freqs, at, directory))
+    written.append(_ratio_plot(first, table, windings, freqs, directory))
+    written.append(_loss_bars(first, table, windings, freqs, at, directory))
     return written
 
 
-def _ratio_plot(first: Report, table: list[VariantRow], windings: list[str], freqs: np.ndarray,
+def _ratio_plot(first: tuple[str, dict], table: list[VariantRow], windings: list[str], freqs: np.ndarray,
                 directory: Path) -> Path:
     figure = new_figure(7.0, 2.6 + 2.4 * len(windings))
     colours = line_colours(len(table), colormaps[LINE_MAP])
@@ -107,7 +117,7 @@ def _ratio_plot(first: Report, table: list[VariantRow], windings: list[str], fre
     return save(figure, directory / "rac_over_rdc_variants.png")
 
 
-def _loss_bars(first: Report, table: list[VariantRow], windings: list[str], freqs: np.ndarray, at: int,
+def _loss_bars(first: tuple[str, dict], table: list[VariantRow], windings: list[str], freqs: np.ndarray, at: int,
                directory: Path) -> Path:
     figure = new_figure(7.0, 4.0)
     ax = figure.add_subplot()
@@ -128,24 +138,73 @@ def _loss_bars(first: Report, table: list[VariantRow], windings: list[str], freq
     return save(figure, directory / "loss_by_variant.png")
 
 
-def _base_title(report: Report) -> str:
-    title = report.case.title
-    suffix = f" [{report.case.variant}]"
-    return title[: -len(suffix)] if report.case.variant and title.endswith(suffix) else title
+def _base_title(first: tuple[str, dict]) -> str:
+    variant, doc = first
+    title = doc["title"]
+    suffix = f" [{variant}]"
+    return title[: -len(suffix)] if variant and title.endswith(suffix) else title
 
 
-def summary(reports: list[Report], wanted: float | None) -> str:
+def summary(documents: list[tuple[str, dict]], wanted: float | None) -> str:
     """A text table at the comparison frequency."""
-    table = rows(reports)
-    freqs = np.asarray(reports[0].sweep.frequencies)
+    table = rows(documents)
+    freqs = np.asarray(documents[0][1]["frequencies_hz"])
     at = compare_index(freqs, wanted)
-    windings = [w.name for w in reports[0].windings]
-    head = (f"{'variant':<16} " + " ".join(f"{n[:12] + ' Rac/Rdc':>20}" for n in windings)
+    windings = list(documents[0][1]["windings"])
+    head = (f"{'variant':<28} " + " ".join(f"{n[:12] + ' Rac/Rdc':>20}" for n in windings)
             + f" {'total loss':>12} {'leakage':>12}")
     lines = [f"comparison at {format_frequency(freqs[at])}:", head, "-" * len(head)]
     for row in table:
         ratios = " ".join(f"{'-' if row.rac_over_rdc[n][at] is None else f'{row.rac_over_rdc[n][at]:.4f}':>20}"
                           for n in windings)
         leak = "-" if row.leakage_l_h is None else f"{row.leakage_l_h[at] * 1e6:.4g} uH"
-        lines.append(f"{row.name[:16]:<16} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}")
+        lines.append(f"{row.name[:28]:<28} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}")
     return "\n".join(lines)
+
+
+#: the files :func:`write_study_table` writes
+STUDY_FILES = ("study.csv", "study.json")
+
+
+def write_study_table(case, documents: list[tuple[str, dict]], failed: dict[str, str],
+                      directory: Path) -> list[Path]:
+    """study.csv and study.json: one row per variant and frequency (the study's
+    values, each winding's Rac/Rdc and loss in W, the total, the leakage in H),
+    and one row with the error for every failed variant."""
+    points = {p.name: dict(p.values) for p in getattr(case, "study", ())}
+    keys = list(dict.fromkeys(k for values in points.values() for k in values)) or ["variant"]
+    windings = [w.name for w in case.windings]
+    table = {r.name: r for r in rows(documents)}
+    order = [name for name, _ in documents] + [n for n in failed if n not in dict(documents)]
+
+    def value(name: str, key: str) -> str:
+        if key == "variant" and not points:
+            return name
+        v = points.get(name, {}).get(key, "")
+        return v if isinstance(v, str) else json.dumps(v)
+
+    buffer = io.StringIO()
+    out = csv.writer(buffer, lineterminator="\n")
+    out.writerow(["variant", *keys, "frequency_hz", *[f"{w}_rac_over_rdc" for w in windings],
+                  *[f"{w}_loss_w" for w in windings], "total_loss_w", "leakage_l_h", "error"])
+    entries = []
+    docs = dict(documents)
+    for name in order:
+        values = [value(name, k) for k in keys]
+        if name in failed:
+            out.writerow([name, *values, "", *[""] * (2 * len(windings)), "", "", failed[name]])
+            entries.append({"variant": name, "values": dict(zip(keys, values)), "error": failed[name]})
+            continue
+        r, freqs = table[name], docs[name]["frequencies_hz"]
+        for i, f in enumerate(freqs):
+            out.writerow([name, *values, f"{f:.8g}",
+                          *["" if r.rac_over_rdc[w][i] is None else f"{r.rac_over_rdc[w][i]:.8g}" for w in windings],
+                          *[f"{r.loss_w[w][i]:.8g}" for w in windings], f"{r.total_loss_w[i]:.8g}",
+                          "" if r.leakage_l_h is None else f"{r.leakage_l_h[i]:.8g}", ""])
+        entries.append({"variant": name, "values": dict(zip(keys, values)), "error": None,
+                        "folder": folder_name(name), "frequencies_hz": freqs,
+                        "rac_over_rdc": r.rac_over_rdc, "loss_w": r.loss_w, "total_loss_w": r.total_loss_w,
+                        "leakage_l_h": r.leakage_l_h})
+    doc = {"keys": keys, "windings": windings, "variants": entries}
+    return [replace_text(directory / "study.csv", buffer.getvalue()),
+            replace_text(directory / "study.json", json.dumps(doc, indent=1) + "\n")]

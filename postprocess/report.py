@@ -48,12 +48,15 @@ class WindingResult:
 @dataclass
 class Report:
     """Everything the writers need.  ``estimates``: the hand estimates of
-    :func:`postprocess.estimates.hand_estimates` for the same frequencies."""
+    :func:`postprocess.estimates.hand_estimates` for the same frequencies;
+    ``mesh_check``: the refined-mesh check of :mod:`postprocess.mesh_check`
+    (None when not asked for)."""
 
     case: Case
     sweep: SweepResult
     windings: list[WindingResult]
     estimates: dict
+    mesh_check: dict | None = None
 
     @cached_property
     def magnetic(self) -> dict:
@@ -107,11 +110,17 @@ def build_report(case: Case, sweep: SweepResult) -> Report:
                   hand_estimates(case, sweep.frequencies, conductors=sweep.conductors))
 
 
-def results_document(report: Report) -> dict:
-    """The results.json document (see README, result files)."""
+def results_document(report: Report, solved_of: int | None = None) -> dict:
+    """The results.json document (see README, result files).  ``solved_of``:
+    the number of frequencies of the whole run when ``report`` holds only the
+    points solved so far (a partial document: no field, MMF or harmonics)."""
     case, sweep = report.case, report.sweep
     conductor_loss = report.conductor_loss_w()
+    partial = solved_of is not None
+    status = ({"complete": False, "solved": len(sweep.frequencies), "of": solved_of} if partial
+              else {"complete": True, "solved": len(sweep.frequencies), "of": len(sweep.frequencies)})
     return {
+        "status": status,
         "title": case.title,
         "symmetry": case.model.symmetry,
         "temperature_c": case.model.temperature_c,
@@ -134,11 +143,13 @@ def results_document(report: Report) -> dict:
             for c in sweep.conductors
         ],
         **report.magnetic,
-        **({"mmf": m} if (m := mmf_document(report)) else {}),
+        **({"mmf": m} if not partial and (m := mmf_document(report)) else {}),
         **({"parallel": par} if (par := parallel_document(report)) else {}),
-        **({"harmonics": h} if (h := harmonics_document(report)) else {}),
+        **({"harmonics": h} if not partial and (h := harmonics_document(report)) else {}),
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
+        "warnings": [dict(w) for w in sweep.warnings],
+        **({"mesh_check": report.mesh_check} if report.mesh_check is not None else {}),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),

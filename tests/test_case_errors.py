@@ -221,6 +221,9 @@ BAD_CASES = [
      "model.temperature", ["degC"]),
     ("key-with-line-break", edit(BASE, ('[model]\n', '[model]\n"sym\\rmetry" = "planar"\n')),
      "model.sym", ["unknown key"]),
+    ("mesh-frequency-zero", BASE + '\n[mesh]\nfrequency = "0 kHz"\n', "mesh.frequency", ["greater than zero"]),
+    ("mesh-frequency-wrong-unit", BASE + '\n[mesh]\nfrequency = "1 mm"\n', "mesh.frequency", ['"200 kHz"']),
+    ("mesh-frequency-without-unit", BASE + '\n[mesh]\nfrequency = "500"\n', "mesh.frequency", ["no unit"]),
     ("value-with-line-break", edit(BASE, ('material = "copper"', 'material = "cop\\u2028per"')),
      "winding[1].material", ["unknown value"]),
 ]

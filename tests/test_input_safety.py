@@ -248,3 +248,19 @@ def test_both_commands_take_the_flag():
     for command in ("run", "check"):
         assert parser().parse_args([command, "case.toml", "--allow-outside-files"]).allow_outside_files is True
         assert parser().parse_args([command, "case.toml"]).allow_outside_files is False
+
+
+def test_study_points_inherit_allow_outside_files(tmp_path):
+    # rule (b): a [study] point is made a case from the same file: the flag given for the
+    # case holds for its points (and the refusal without it)
+    from geometry.case import study_case
+    folder, _ = _folders(tmp_path)
+    path = folder / "study.toml"
+    path.write_text(_waveform_case("../outside.csv") + '\n[[study.axis]]\nkey = "layer[1].turns"\n'
+                    "values = [2, 4]\n", encoding="utf-8")
+    with pytest.raises(CaseError, match="escapes the case folder"):
+        load_case(path)
+    case = load_case(path, allow_outside_files=True)
+    points = [study_case(case, point) for point in case.study]
+    assert [p.layers[0].turns for p in points] == [2, 4]
+    assert all(p.windings[0].waveform.kind == "file" for p in points)

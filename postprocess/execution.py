@@ -1,0 +1,155 @@
+"""Running the variants of a case: in this process, in a local pool of worker
+processes, or on an existing Dask distributed cluster.
+
+Every variant is an independent job: its :class:`~geometry.case.Case` goes to
+a worker, the worker runs the sweep (BLAS limited to one thread, so that
+workers do not oversubscribe the cores and every way of running gives the
+same numbers), and its :class:`~fem.sweep.SweepResult` comes back to this
+process, which writes the files.  Nothing passes through a shared disk.  A
+variant that fails (bad geometry for one axis value, an internal error)
+comes back with its error line; a worker lost while running a variant makes
+the scheduler run it once more (``distributed.scheduler.allowed-failures``,
+set to 1 for the local pool), and a second loss fails that variant alone.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+from dataclasses import dataclass
+from typing import Callable, Iterable
+
+from threadpoolctl import threadpool_limits
+
+from fem.sweep import SweepResult, run_sweep
+from geometry.case import Case
+from geometry.errors import CaseError
+
+
+@dataclass
+class Job:
+    """One variant to run: ``case`` None when its document was refused (``error``)."""
+
+    key: str
+    case: Case | None
+    error: str | None = None
+
+
+@dataclass
+class Outcome:
+    """A finished job: the sweep, or the error line of a failed variant."""
+
+    key: str
+    sweep: SweepResult | None
+    error: str | None
+
+
+def solve_job(case: Case, exact: bool) -> tuple[SweepResult | None, str | None]:
+    """Run in a worker: the sweep of one variant, or its one-line error."""
+    with threadpool_limits(limits=1):
+        try:
+            return run_sweep(case, method="exact" if exact else "auto"), None
+        except CaseError as error:
+            return None, error.line()
+        except Exception as error:  # a bug in one variant must not stop the others
+            return None, f"internal error: {error.__class__.__name__}: {error}"
+
+
+def default_workers() -> int:
+    """Worker processes for the local pool: the machine's cores."""
+    return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count() or 1)
+
+
+class Progress:
+    """One status line: variants done, running, queued (and failed)."""
+
+    def __init__(self, total: int, slots: int, stream=sys.stderr, quiet: bool = False) -> None:
+        self.total, self.slots, self.stream, self.quiet = total, slots, stream, quiet
+        self.done = self.failed = 0
+        self.started = time.perf_counter()
+
+    def show(self) -> None:
+        if self.quiet:
+            return
+        waiting = self.total - self.done - self.failed
+        running = min(waiting, self.slots)
+        line = (f"  variants: {self.done} done, {running} running, {waiting - running} queued"
+                + (f", {self.failed} failed" if self.failed else "")
+                + f"  {time.perf_counter() - self.started:6.1f} s")
+        end = "\n" if not self.stream.isatty() or waiting == 0 else ""
+        self.stream.write(("\r" if self.stream.isatty() else "") + line + end)
+        self.stream.flush()
+
+    def count(self, outcome: Outcome) -> None:
+        if outcome.error is None:
+            self.done += 1
+        else:
+            self.failed += 1
+        self.show()
+
+
+def run_jobs(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
+             finished: Callable[[Outcome], None], quiet: bool = False) -> list[Outcome]:
+    """Run ``jobs`` and call ``finished`` with each outcome as it arrives (in
+    this process).  ``workers`` 1 and no ``cluster``: one after the other here;
+    otherwise a local pool of ``workers`` processes, or the Dask scheduler at
+    ``cluster`` (an address such as tcp://10.0.0.5:8786)."""
+    ready = [Outcome(j.key, None, j.error) for j in jobs if j.case is None]
+    runnable = [j for j in jobs if j.case is not None]
+    progress = Progress(len(jobs), 1 if cluster is None and workers <= 1 else max(workers, 1), quiet=quiet)
+    outcomes: list[Outcome] = []
+
+    def deliver(outcome: Outcome) -> None:
+        outcomes.append(outcome)
+        finished(outcome)
+        progress.count(outcome)
+
+    progress.show()
+    for outcome in ready:
+        deliver(outcome)
+    if not runnable:
+        return outcomes
+    if cluster is None and workers <= 1:
+        for job in runnable:
+            sweep, error = solve_job(job.case, exact)
+            deliver(Outcome(job.key, sweep, error))
+        return outcomes
+    for outcome in _distributed(runnable, exact, workers, cluster, progress):
+        deliver(outcome)
+    return outcomes
+
+
+def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
+                 progress: Progress) -> Iterable[Outcome]:
+    import dask
+    from distributed import Client, LocalCluster, as_completed
+
+    local = None
+    if cluster is None:
+        with dask.config.set({"distributed.scheduler.allowed-failures": 1}):
+            local = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                                 host="127.0.0.1", dashboard_address=None, silence_logs=50)
+        client = Client(local)
+    else:
+        try:
+            client = Client(cluster, timeout=30)
+        except (OSError, TimeoutError) as error:
+            raise CaseError("--cluster", f"cannot reach the Dask scheduler at {cluster} ({error})",
+                            "start a scheduler and workers (see README, Parameter studies) or check the address"
+                            ) from None
+        progress.slots = max(1, sum(client.nthreads().values()))
+    try:
+        futures = {client.submit(solve_job, job.case, exact, key=f"racfield-{i}-{job.key}", pure=False): job
+                   for i, job in enumerate(jobs)}
+        for future in as_completed(futures):
+            job = futures[future]
+            try:
+                sweep, error = future.result()
+            except Exception as error:  # the worker was lost (twice) or the task could not run
+                sweep, error = None, f"the variant could not be run: {error.__class__.__name__}: {error}"
+            yield Outcome(job.key, sweep, error)
+    finally:
+        client.close()
+        if local is not None:
+            local.close()

@@ -150,7 +150,9 @@ def _local_cluster(allowed_failures: int = 3):
     import dask
     from distributed import LocalCluster
 
-    with dask.config.set({"distributed.scheduler.allowed-failures": allowed_failures}):
+    # no MALLOC_TRIM_THRESHOLD_: a nanny would also set it in this process's environment
+    with dask.config.set({"distributed.scheduler.allowed-failures": allowed_failures,
+                          "distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_": None}):
         return LocalCluster(n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",
                             dashboard_address=None)
 

@@ -130,10 +130,12 @@ def _unique(points: list[StudyPoint]) -> list[StudyPoint]:
 
 def point_document(base: dict, point: StudyPoint) -> dict:
     """The case document of ``point``: ``base`` (without [study]) with its values
-    set (CaseError naming the key path when a path does not fit the document)."""
+    set (CaseError naming the key path when a path does not fit the document).
+    The [[variant]] arrangement is selected first, whatever the order of the
+    axes, so that key paths such as ``layer[2]`` refer to its layers."""
     doc = copy.deepcopy(base)
     doc.pop("study", None)
-    for key, value in point.values:
+    for key, value in sorted(point.values, key=lambda item: item[0] != VARIANT_KEY):
         if key == VARIANT_KEY:
             _select_variant(doc, value)
         else:

@@ -185,7 +185,10 @@ def write_study_table(case, documents: list[tuple[str, dict]], failed: dict[str,
 
     buffer = io.StringIO()
     out = csv.writer(buffer, lineterminator="\n")
-    out.writerow(["variant", *keys, "frequency_hz", *[f"{w}_rac_over_rdc" for w in windings],
+    # the first column, "variant", is the point's name; the "variant" study key (the
+    # [[variant]] arrangement) is headed "arrangement", so that no two columns share a name
+    axes = ["arrangement" if k == "variant" else k for k in keys]
+    out.writerow(["variant", *axes, "frequency_hz", *[f"{w}_rac_over_rdc" for w in windings],
                   *[f"{w}_loss_w" for w in windings], "total_loss_w", "leakage_l_h", "error"])
     entries = []
     docs = dict(documents)

@@ -47,13 +47,16 @@ def results(tmp_path_factory):
 
 
 def test_every_case_is_covered(results):
-    assert set(results) == set(NAMES) | {"interleaving_study"}
+    assert set(results) == set(NAMES) | {"interleaving_study", "design_study"}
 
+
+#: the 6 points of cases/design_study.toml: 2 interleavings x 3 secondary foil thicknesses
+DESIGN_STUDY = [f"design_study/{order}, thickness={t} mm" for order in ("P-P-S", "P-S-P") for t in ("0.1", "0.2", "0.3")]
 
 NAMES = ["demo_transformer", "pcb_planar_transformer", "air_core_choke", "gapped_inductor",
          "gapped_inductor_split_gap", "pot_core_axisymmetric", "pot_core_planar",
          "interleaving_study/P-P-S", "interleaving_study/P-S-P", "interleaving_study/P-S-P-S",
-         "paralleled_foils", "flyback_waveforms"]
+         "paralleled_foils", "flyback_waveforms", *DESIGN_STUDY]
 
 
 @pytest.mark.parametrize("name", NAMES)
@@ -219,3 +222,40 @@ def test_paralleled_foils_demo(results):
     at = doc["frequencies_hz"].index(300e3)
     high, low = sorted(par["strand_current_a"][at], reverse=True)
     assert high / low > 1.3 and par["circulating_loss_w"][at] > 0.0
+
+
+def _dowell(d: float, m: int) -> float:
+    """Rac/Rdc of an m-layer foil portion, d = thickness / skin depth (P. L. Dowell,
+    "Effects of eddy currents in transformer windings", Proc. IEE 113(8), 1966)."""
+    xi1 = (math.sinh(2 * d) + math.sin(2 * d)) / (math.cosh(2 * d) - math.cos(2 * d))
+    xi2 = (math.sinh(d) - math.sin(d)) / (math.cosh(d) + math.cos(d))
+    return d * (xi1 + 2.0 / 3.0 * (m * m - 1) * xi2)
+
+
+def test_design_study(results):
+    comparison, folder = results["design_study"]
+    study = json.loads((folder / "study.json").read_text())
+    assert [v["variant"] for v in study["variants"]] == [n.split("/", 1)[1] for n in DESIGN_STUDY]
+    assert all(v["error"] is None for v in study["variants"])
+    rows = list(csv.reader((folder / "study.csv").open()))
+    assert len(rows) == 1 + 6 * 12                     # one row per variant and frequency
+    rho = _rho(100.0)
+    for name in DESIGN_STUDY:
+        doc, _ = results[name]
+        order, thickness = name.split("/")[1].split(", thickness=")
+        t = float(thickness.split()[0]) * 1e-3
+        w = doc["windings"]
+        # 4 primary turns of 0.1 mm x 5 mm foil and 2 secondary turns of t x 5 mm,
+        # 40 mm per turn, 100 degC: Rdc = rho l N / A (IEC 60028)
+        assert w["primary"]["rdc_ohm"] == pytest.approx(rho * 0.040 * 4 / (0.1e-3 * 5e-3), rel=5e-4)
+        assert w["secondary"]["rdc_ohm"] == pytest.approx(rho * 0.040 * 2 / (t * 5e-3), rel=5e-4)
+        # the foils span the full height between ideal-core walls, so the field is
+        # one-dimensional and Dowell's formula holds for every winding portion:
+        # P-P-S: the MMF rises over 4 primary layers and falls over 2 secondary
+        # layers; P-S-P: 2 primary layers on each side (m = 2), and each secondary
+        # layer sees zero MMF on one face (m = 1) (Dowell, Proc. IEE, 1966)
+        layers = {"primary": 4, "secondary": 2} if order == "P-P-S" else {"primary": 2, "secondary": 1}
+        for winding, foil in (("primary", 0.1e-3), ("secondary", t)):
+            for f, ratio in zip(doc["frequencies_hz"], w[winding]["rac_over_rdc"]):
+                delta = math.sqrt(rho / (math.pi * f * MU0))
+                assert ratio == pytest.approx(_dowell(foil / delta, layers[winding]), rel=3e-3), (name, winding, f)

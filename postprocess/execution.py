@@ -132,7 +132,7 @@ def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None
         with dask.config.set({"distributed.scheduler.allowed-failures": 1,
                               "distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_": None}):
             local = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
-                                 host="127.0.0.1", dashboard_address=None, silence_logs=50)
+                                 host="127.0.0.1", dashboard_address="127.0.0.1:0", silence_logs=50)
         client = Client(local)
     else:
         try:

@@ -154,7 +154,7 @@ def _local_cluster(allowed_failures: int = 3):
     with dask.config.set({"distributed.scheduler.allowed-failures": allowed_failures,
                           "distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_": None}):
         return LocalCluster(n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",
-                            dashboard_address=None)
+                            dashboard_address="127.0.0.1:0")
 
 
 @pytest.fixture

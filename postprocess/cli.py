@@ -28,6 +28,7 @@ from geometry.materials import material, skin_depth
 
 from geometry.units import quantity
 
+from .atomic import replace_bytes
 from .checkpoint import RunState, fingerprint
 from .comparison import COMPARISON_FILES, STUDY_FILES, folder_name, summary, write_comparison, write_study_table
 from .execution import Job, Outcome, default_workers, run_jobs
@@ -136,15 +137,22 @@ def _run_one(case: Case, out: Path, args, state: RunState, key: str) -> dict:
     return _write_one(case, sweep, out, args, state, key)
 
 
-def _write_one(case: Case, sweep, out: Path, args, state: RunState, key: str) -> dict:
-    """Write one solved arrangement's files and print its table; returns its results document."""
+def _write_one(case: Case, sweep, out: Path, args, state: RunState, key: str,
+               files: dict[str, bytes] | None = None, checked: dict | None = None) -> dict:
+    """Write one solved arrangement's files (``files``: already rendered by a
+    worker, with its mesh check ``checked``) and print its table; returns its
+    results document."""
     out.mkdir(parents=True, exist_ok=True)
     for warning in sweep.warnings:
         print(f"racfield: warning: {warning['message']}", file=sys.stderr)
     report = build_report(case, sweep)
-    if args.check_mesh:
-        report.mesh_check = mesh_check(report)
-    written = write_all(report, out)
+    if files is not None:
+        report.mesh_check = checked
+        written = [replace_bytes(out / name, data) for name, data in files.items()]
+    else:
+        if args.check_mesh:
+            report.mesh_check = mesh_check(report)
+        written = write_all(report, out)
     state.record(written)
     state.finish(key)
     print(f"== {case.title}")
@@ -244,9 +252,11 @@ def command_run(args) -> int:
                 return
             documents[outcome.key] = (names[outcome.key], _write_one(cases[outcome.key], outcome.sweep,
                                                                      folders[outcome.key], args, state,
-                                                                     outcome.key))
+                                                                     outcome.key, outcome.files,
+                                                                     outcome.mesh_check))
 
-        run_jobs(jobs, bool(args.exact), workers, args.cluster, finished, quiet=args.quiet)
+        run_jobs(jobs, bool(args.exact), workers, args.cluster, finished, quiet=args.quiet,
+                 check_mesh=args.check_mesh)
     if several:
         ordered = [documents[key] for key, _, _, _ in arrangements if key in documents]
         failed = {names[key]: failures[key] for key, _, _, _ in arrangements if key in failures}

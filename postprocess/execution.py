@@ -38,22 +38,46 @@ class Job:
 
 @dataclass
 class Outcome:
-    """A finished job: the sweep, or the error line of a failed variant."""
+    """A finished job: the sweep and its result files (name -> bytes, rendered
+    by the worker; None when run here), or the error line of a failed variant."""
 
     key: str
     sweep: SweepResult | None
     error: str | None
+    files: dict[str, bytes] | None = None
+    mesh_check: dict | None = None
 
 
-def solve_job(case: Case, exact: bool) -> tuple[SweepResult | None, str | None]:
-    """Run in a worker: the sweep of one variant, or its one-line error."""
+def _render(case: Case, sweep: SweepResult, check_mesh: bool) -> tuple[dict[str, bytes], dict | None]:
+    """The variant's result files as bytes (written to a private temporary
+    folder of the worker and read back) and its mesh check."""
+    import tempfile
+    from pathlib import Path
+
+    from .mesh_check import mesh_check
+    from .report import build_report
+    from .writers import write_all
+
+    report = build_report(case, sweep)
+    if check_mesh:
+        report.mesh_check = mesh_check(report)
+    with tempfile.TemporaryDirectory(prefix="racfield-") as folder:
+        return {p.name: p.read_bytes() for p in write_all(report, Path(folder))}, report.mesh_check
+
+
+def solve_job(case: Case, exact: bool, render: bool = False, check_mesh: bool = False):
+    """Run in a worker: (sweep, files, mesh check, None) of one variant, or
+    (None, None, None, its one-line error).  ``render``: also make the result
+    files there, so that the client only writes bytes."""
     with threadpool_limits(limits=1):
         try:
-            return run_sweep(case, method="exact" if exact else "auto"), None
+            sweep = run_sweep(case, method="exact" if exact else "auto")
+            files, checked = _render(case, sweep, check_mesh) if render else (None, None)
+            return sweep, files, checked, None
         except CaseError as error:
-            return None, error.line()
+            return None, None, None, error.line()
         except Exception as error:  # a bug in one variant must not stop the others
-            return None, f"internal error: {error.__class__.__name__}: {error}"
+            return None, None, None, f"internal error: {error.__class__.__name__}: {error}"
 
 
 def default_workers() -> int:
@@ -90,7 +114,7 @@ class Progress:
 
 
 def run_jobs(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
-             finished: Callable[[Outcome], None], quiet: bool = False) -> list[Outcome]:
+             finished: Callable[[Outcome], None], quiet: bool = False, check_mesh: bool = False) -> list[Outcome]:
     """Run ``jobs`` and call ``finished`` with each outcome as it arrives (in
     this process).  ``workers`` 1 and no ``cluster``: one after the other here;
     otherwise a local pool of ``workers`` processes, or the Dask scheduler at
@@ -112,16 +136,16 @@ def run_jobs(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
         return outcomes
     if cluster is None and workers <= 1:
         for job in runnable:
-            sweep, error = solve_job(job.case, exact)
+            sweep, _, _, error = solve_job(job.case, exact)
             deliver(Outcome(job.key, sweep, error))
         return outcomes
-    for outcome in _distributed(runnable, exact, workers, cluster, progress):
+    for outcome in _distributed(runnable, exact, workers, cluster, progress, check_mesh):
         deliver(outcome)
     return outcomes
 
 
 def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
-                 progress: Progress) -> Iterable[Outcome]:
+                 progress: Progress, check_mesh: bool = False) -> Iterable[Outcome]:
     import dask
     from distributed import Client, LocalCluster, as_completed
 
@@ -143,16 +167,19 @@ def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None
                             ) from None
         progress.slots = max(1, sum(client.nthreads().values()))
     try:
-        futures = {client.submit(solve_job, job.case, exact, key=f"racfield-{i}-{job.key}", pure=False): job
+        # the workers also render the result files: the client only writes their bytes
+        futures = {client.submit(solve_job, job.case, exact, True, check_mesh, key=f"racfield-{i}-{job.key}",
+                                 pure=False): job
                    for i, job in enumerate(jobs)}
         for future in as_completed(futures):
             job = futures[future]
             try:
-                sweep, error = future.result()
+                sweep, files, checked, error = future.result()
             except Exception as lost:  # the worker was lost (twice) or the task could not run
                 # (not "as error": Python unbinds that name when the except block ends)
-                sweep, error = None, f"the variant could not be run: {lost.__class__.__name__}: {lost}"
-            yield Outcome(job.key, sweep, error)
+                sweep, files, checked = None, None, None
+                error = f"the variant could not be run: {lost.__class__.__name__}: {lost}"
+            yield Outcome(job.key, sweep, error, files, checked)
     finally:
         client.close()
         if local is not None:

@@ -8,17 +8,8 @@ from pathlib import Path
 
 
 def replace_text(path: Path, text: str) -> Path:
-    """Write ``text`` to ``path`` atomically (UTF-8)."""
-    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
-    try:
-        os.chmod(tmp, 0o666 & ~_umask())
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-            handle.write(text)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return path
+    """Write ``text`` to ``path`` atomically (UTF-8, line ends as given)."""
+    return replace_bytes(path, text.encode("utf-8"))
 
 
 def replace_bytes(path: Path, data: bytes) -> Path:

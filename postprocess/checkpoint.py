@@ -14,9 +14,8 @@ run killed at any moment leaves a consistent folder.
 from __future__ import annotations
 
 import hashlib
+import io
 import json
-import os
-import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -26,7 +25,7 @@ from fem.sweep import PointResult
 from geometry.case import Case
 from geometry.errors import CaseError
 
-from .atomic import replace_text
+from .atomic import replace_bytes, replace_text
 
 STATE = ".racfield"
 MANIFEST = "manifest.json"
@@ -140,14 +139,9 @@ class RunState:
     def save_point(self, key: str, index: int, point: PointResult) -> None:
         folder = self._points(key)
         folder.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(dir=folder, prefix=".point.", suffix=".npz")
-        try:
-            with os.fdopen(fd, "wb") as handle:
-                np.savez(handle, **vars(point))
-            os.replace(tmp, folder / f"{index:05d}.npz")
-        except BaseException:
-            Path(tmp).unlink(missing_ok=True)
-            raise
+        buffer = io.BytesIO()
+        np.savez(buffer, **vars(point))
+        replace_bytes(folder / f"{index:05d}.npz", buffer.getvalue())
 
     def load_points(self, key: str) -> dict[int, PointResult]:
         out = {}

@@ -34,10 +34,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from geometry.case import Case
-from geometry.layout import Conductor
-from geometry.materials import skin_depth
-from geometry.mesher import WindowMesh
+from racfield.geometry.case import Case
+from racfield.geometry.layout import Conductor
+from racfield.geometry.case.units import format_frequency
+from racfield.geometry.materials import skin_depth
+from racfield.geometry.mesher import WindowMesh
 
 #: warn when a conductor's surface has fewer elements per skin depth than this
 MIN_ELEMENTS_PER_SKIN_DEPTH = 1.0
@@ -51,14 +52,6 @@ def warning(kind: str, frequency: float | None, message: str) -> dict:
     """One warning as plain data."""
     return {"kind": kind, "frequency_hz": None if frequency is None else float(frequency),
             "message": " ".join(message.split())}
-
-
-def _hz(f: float) -> str:
-    """'250 kHz', '1.5 MHz'."""
-    for scale, unit in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")):
-        if f >= scale:
-            return f"{f / scale:.4g} {unit}"
-    return f"{f:.4g} Hz"
 
 
 def surface_edges(window_mesh: WindowMesh) -> tuple[np.ndarray, np.ndarray]:
@@ -109,7 +102,7 @@ def mesh_warnings(case: Case, conductors: list[Conductor], resistivity: np.ndarr
                 delta = skin_depth(float(resistivity[c.index]), float(f))
                 out.append(warning(
                     "under-resolved-mesh", f,
-                    f"at {_hz(f)} the mesh is under-resolved: {per_delta[worst]:.2f} elements per skin depth "
+                    f"at {format_frequency(f)} the mesh is under-resolved: {per_delta[worst]:.2f} elements per skin depth "
                     f"at the surface of {c.winding} turn {c.turn} (largest surface element "
                     f"{largest[c.index] * 1e3:.4g} mm, skin depth {delta * 1e3:.4g} mm; "
                     f"at least {MIN_ELEMENTS_PER_SKIN_DEPTH:g} needed); raise [mesh] density"
@@ -117,15 +110,15 @@ def mesh_warnings(case: Case, conductors: list[Conductor], resistivity: np.ndarr
         if f > mesh_f * (1.0 + 1e-9):
             out.append(warning(
                 "above-mesh-frequency", f,
-                f"{_hz(f)} is above the frequency the mesh was sized for ({_hz(mesh_f)}, [mesh] frequency); "
-                f"raise [mesh] frequency to at least {_hz(f)} or remove it"))
+                f"{format_frequency(f)} is above the frequency the mesh was sized for ({format_frequency(mesh_f)}, [mesh] frequency); "
+                f"raise [mesh] frequency to at least {format_frequency(f)} or remove it"))
     return out
 
 
 def residual_warnings(residuals) -> list[dict]:
     """``residuals``: (frequency Hz, backward error or None) of the full solves."""
     return [warning("solve-residual", f,
-                    f"the solve at {_hz(f)} left a residual (backward error) of {r:.2g}, above "
+                    f"the solve at {format_frequency(f)} left a residual (backward error) of {r:.2g}, above "
                     f"{RESIDUAL_LIMIT:g}: its results may be inaccurate; check the case for extreme "
                     "permeability or size ratios")
             for f, r in residuals if r is not None and not r <= RESIDUAL_LIMIT]

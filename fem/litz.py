@@ -39,7 +39,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.special import jv
 
-from geometry.materials import MU0
+from racfield.geometry.materials import MU0
 
 
 def _ka(strand_diameter: float, resistivity: float, omega: float) -> complex:

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from geometry.layout import Conductor
+from racfield.geometry.layout import Conductor
 
 from .probe import field_strength_at
 

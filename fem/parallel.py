@@ -18,8 +18,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from geometry.case import Case, parallel_of
-from geometry.layout import Conductor
+from racfield.geometry.case import Case, parallel_of
+from racfield.geometry.layout import Conductor
 
 
 @dataclass(frozen=True)

@@ -20,8 +20,8 @@ import numpy as np
 from matplotlib.tri import Triangulation
 from skfem import ElementTriP2
 
-from geometry.materials import MU0
-from geometry.mesher import CORE
+from racfield.geometry.materials import MU0
+from racfield.geometry.mesher import CORE
 
 _ELEMENT = ElementTriP2()
 _INSIDE_TOL = 1e-9     # barycentric tolerance for "inside the element"

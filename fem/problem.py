@@ -21,8 +21,8 @@ import numpy as np
 import scipy.sparse as sp
 from skfem import Basis, ElementTriP2, FacetBasis, MeshTri2
 
-from geometry.materials import MU0
-from geometry.mesher import CORE, WindowMesh
+from racfield.geometry.materials import MU0
+from racfield.geometry.mesher import CORE, WindowMesh
 
 from .forms import (applied_field_load, axisymmetric_conductivity_mass, axisymmetric_robin_mass,
                     axisymmetric_stiffness, conductivity_mass, reluctivity_stiffness, robin_mass)

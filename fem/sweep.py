@@ -11,10 +11,10 @@ from typing import Callable
 
 import numpy as np
 
-from geometry.case import Case
-from geometry.layout import Conductor, dc_resistance, place
-from geometry.materials import material, skin_depth
-from geometry.mesher import MeshSizing, WindowMesh, build_mesh
+from racfield.geometry.case import Case
+from racfield.geometry.layout import Conductor, dc_resistance, place
+from racfield.geometry.materials import material, skin_depth
+from racfield.geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
 from .guards import sweep_warnings
 from .mmf import MmfProfile, mmf_profile

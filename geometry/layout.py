@@ -12,8 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .case import Case, ConductorSpec, parallel_of, strands_per_turn
-from .errors import CaseError
+from .case import Case, CaseError, ConductorSpec, parallel_of, strands_per_turn
 
 _TOL = 1e-12  # m; touching is allowed, overlapping is not
 #: the most conductors (turns, parallel conductors, litz strands) one arrangement may place:

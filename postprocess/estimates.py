@@ -56,9 +56,9 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.special import jve
 
-from geometry.case import Case
-from geometry.layout import Conductor, dc_resistance, place
-from geometry.materials import MU0, material, skin_depth
+from racfield.geometry.case import Case
+from racfield.geometry.layout import Conductor, dc_resistance, place
+from racfield.geometry.materials import MU0, material, skin_depth
 
 METHODS = ("dowell", "ferreira")
 

@@ -24,15 +24,12 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
 
 import numpy as np
 
-from geometry.case import Case
-
-
-if TYPE_CHECKING:  # report.py may import this module
-    from .report import Report
+from racfield.fem.sweep import SweepResult
+from racfield.geometry.case import Case
+from racfield.geometry.case.units import format_frequency
 
 
 @dataclass
@@ -116,14 +113,13 @@ def _index(frequencies: np.ndarray, f: float) -> int:
     return int(hits[0])
 
 
-def harmonic_losses(report: "Report") -> HarmonicLosses | None:
-    """The losses of the case's current waveforms (None for a case without waveforms)."""
-    case: Case = report.case
+def harmonic_losses(case: Case, sweep: SweepResult, q: np.ndarray, rdc: dict[str, float]) -> HarmonicLosses | None:
+    """The losses of the case's current waveforms (None for a case without waveforms):
+    from the winding loss matrices ``q`` (Nf, Nw, Nw, Nw) in W/A^2 of the solved
+    ``sweep`` and each winding's DC resistance ``rdc`` in ohm."""
     settings = case.waveform
     if settings is None:
         return None
-    sweep = report.sweep
-    q = report.loss_matrices                                             # (Nf, Nw, Nw, Nw)
     names = list(sweep.winding_names)
     order = [names.index(w.name) for w in case.windings]
     spectra = [w.spectrum for w in case.windings]
@@ -135,7 +131,6 @@ def harmonic_losses(report: "Report") -> HarmonicLosses | None:
             i[k] = s.phasor(n)
         f = _index(sweep.frequencies, settings.frequency(n))
         loss[h] = np.einsum("i,wij,j->w", i.conj(), q[f], i).real
-    rdc = {w.name: w.rdc_ohm for w in report.windings}
     out = []
     for w, k, s in zip(case.windings, order, spectra):
         phasors = [s.phasor(n) for n in harmonics]
@@ -150,9 +145,8 @@ def harmonic_losses(report: "Report") -> HarmonicLosses | None:
                           settings.fraction, settings.max_harmonic, out)
 
 
-def harmonics_document(report: "Report") -> dict | None:
+def harmonics_document(result: HarmonicLosses | None) -> dict | None:
     """``harmonics`` in results.json (None for a case without waveforms)."""
-    result = report.harmonics
     if result is None:
         return None
     return {
@@ -197,8 +191,6 @@ def _bands(w: WindingHarmonics, harmonics: list[int]) -> str:
 def harmonics_table(result: HarmonicLosses) -> str:
     """The run's printed table: per winding DC, AC and total loss, effective
     Rac and the naive estimate's error; then the loss split by harmonic band."""
-    from .report import format_frequency  # report.py may import this module
-
     top = max(result.harmonics)
     lines = [f"current waveforms: f0 = {format_frequency(result.fundamental_hz)}; {len(result.harmonics)} "
              f"harmonic{'s' if len(result.harmonics) != 1 else ''} solved, up to n = {top} "
@@ -228,8 +220,6 @@ def waveform_lines(case: Case) -> str:
     settings = case.waveform
     if settings is None:
         return ""
-    from .report import format_frequency
-
     lines = [f"waveforms: period {settings.period * 1e6:.6g} us (f0 = {format_frequency(settings.fundamental)}); "
              f"harmonics solved: {_ranges(settings.harmonics)}"
              + ("; and 0 Hz (DC)" if settings.dc else "")

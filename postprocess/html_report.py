@@ -16,7 +16,7 @@ import math
 import re
 from pathlib import Path
 
-from geometry.errors import CaseError
+from racfield.geometry.case.errors import CaseError
 
 from .atomic import replace_text
 from .report import format_frequency

@@ -7,8 +7,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from fem.parallel import basis_impedance, sharing, winding_impedance
-from fem.sweep import SweepResult
+from racfield.fem.parallel import basis_impedance, sharing, winding_impedance
+from racfield.fem.sweep import SweepResult
 
 
 def winding_matrices(sweep: SweepResult, length: float) -> tuple[np.ndarray, np.ndarray]:

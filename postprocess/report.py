@@ -8,16 +8,16 @@ proximity loss caused by the other windings' fields at the case excitation.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
 
-from fem.sweep import SweepResult
-from geometry.case import Case
+from racfield.fem.sweep import SweepResult
+from racfield.geometry.case import Case
+from racfield.geometry.case.units import format_frequency  # noqa: F401 (the writers' formatter)
 
-from fem.parallel import basis_impedance, winding_impedance
+from racfield.fem.parallel import basis_impedance, winding_impedance
 
 from .estimates import hand_estimates
 from .harmonics import harmonic_losses, harmonics_document
@@ -71,7 +71,8 @@ class Report:
     @cached_property
     def harmonics(self):
         """The current waveforms' losses (None without waveforms; computed once)."""
-        return harmonic_losses(self)
+        return harmonic_losses(self.case, self.sweep, self.loss_matrices,
+                               {w.name: w.rdc_ohm for w in self.windings})
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -145,7 +146,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         **report.magnetic,
         **({"mmf": m} if not partial and (m := mmf_document(report)) else {}),
         **({"parallel": par} if (par := parallel_document(report)) else {}),
-        **({"harmonics": h} if not partial and (h := harmonics_document(report)) else {}),
+        **({"harmonics": h} if not partial and (h := harmonics_document(report.harmonics)) else {}),
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
         "warnings": [dict(w) for w in sweep.warnings],
@@ -235,12 +236,3 @@ def mmf_document(report: Report) -> dict | None:
             "field_a": (profile.field * np.conj(unit)).real.tolist(),
             "ideal_a": (profile.ideal * np.conj(unit)).real.tolist(),
             "layer_faces_m": profile.boundaries.tolist()}
-
-
-def format_frequency(f: float) -> str:
-    """'250 kHz', '1.5 MHz', '0 Hz (DC)'."""
-    if f == 0.0:
-        return "0 Hz (DC)"
-    exponent = min(int(math.floor(math.log10(abs(f)) / 3)), 3)
-    unit = ["Hz", "kHz", "MHz", "GHz"][max(exponent, 0)]
-    return f"{f / 10 ** (3 * max(exponent, 0)):.4g} {unit}"

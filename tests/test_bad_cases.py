@@ -28,7 +28,7 @@ from pathlib import Path
 
 import pytest
 
-from postprocess.cli import main
+from racfield.cli import main
 
 BAD_CASES = Path(__file__).resolve().parent / "bad_cases"
 EXIT_BAD_INPUT = 2
@@ -141,7 +141,7 @@ def test_run_gives_one_line_and_writes_nothing(case, tmp_path, capsys):
 def racfield_command() -> list[str]:
     """The console script of this interpreter's environment, else ``python -m``."""
     script = shutil.which("racfield", path=str(Path(sys.executable).parent))
-    return [script] if script else [sys.executable, "-m", "postprocess.cli"]
+    return [script] if script else [sys.executable, "-m", "racfield"]
 
 
 @pytest.mark.parametrize("command,name", SUBPROCESS, ids=[f"{c}-{n}" for c, n in SUBPROCESS])

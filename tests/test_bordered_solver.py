@@ -15,11 +15,11 @@ import pytest
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from fem.parallel import excitation_basis
-from fem.reduced import moment_vectors
-from fem.sweep import column_impedances, conductor_resistivities, mesh_case, problem_for
-from geometry.case import parse_case
-from geometry.layout import place
+from racfield.fem.parallel import excitation_basis
+from racfield.fem.reduced import moment_vectors
+from racfield.fem.sweep import column_impedances, conductor_resistivities, mesh_case, problem_for
+from racfield.geometry.case import parse_case
+from racfield.geometry.layout import place
 
 FREQUENCY = 300e3
 AGREEMENT = 1e-9

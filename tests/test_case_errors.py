@@ -21,7 +21,7 @@ from pathlib import Path
 
 import pytest
 
-from postprocess.cli import main
+from racfield.cli import main
 
 EXIT_BAD_INPUT = 2
 
@@ -236,7 +236,7 @@ SUBPROCESS_IDS = ("toml-syntax", "unknown-key-misspelt-required", "wrong-unit", 
 def racfield_command() -> list[str]:
     """The console script of this interpreter's environment, else ``python -m``."""
     script = shutil.which("racfield", path=str(Path(sys.executable).parent))
-    return [script] if script else [sys.executable, "-m", "postprocess.cli"]
+    return [script] if script else [sys.executable, "-m", "racfield"]
 
 
 def assert_one_line_error(err: str, file: str, key: str, extras: list[str]) -> None:

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 from scipy.special import jv
 
-from postprocess.cli import main
+from racfield.cli import main
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
 

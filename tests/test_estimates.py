@@ -24,9 +24,9 @@ import pytest
 from scipy.integrate import quad
 from scipy.special import jv
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from postprocess.estimates import (
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.postprocess.estimates import (
     FERREIRA_FIELDS,
     METHODS,
     dowell_factor,
@@ -37,7 +37,7 @@ from postprocess.estimates import (
     wire_proximity_loss,
     wire_skin_factor,
 )
-from postprocess.report import build_report
+from racfield.postprocess.report import build_report
 
 #: measured deviations of the hand estimates from racfield's FEM (largest |relative|),
 #: for the README validation table

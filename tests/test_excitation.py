@@ -9,11 +9,11 @@ import json
 import numpy as np
 import pytest
 
-from fem.problem import WindowProblem
-from fem.sweep import conductor_resistivities, mesh_case
-from geometry.case import parse_case
-from geometry.layout import place
-from postprocess.cli import main
+from racfield.fem.problem import WindowProblem
+from racfield.fem.sweep import conductor_resistivities, mesh_case
+from racfield.geometry.case import parse_case
+from racfield.geometry.layout import place
+from racfield.cli import main
 
 TWO_WINDINGS = {
     "model": {"length": "30 mm"},

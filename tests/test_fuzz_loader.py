@@ -53,10 +53,12 @@ from pathlib import Path
 
 from hypothesis import HealthCheck, event, given, settings, strategies as st
 
-from geometry.case import Case, load_case, parse_case, variant_cases
-from geometry.errors import CaseError
-from geometry.layout import place
-from postprocess.cli import main
+from racfield.geometry.case import Case, parse_case, variant_cases
+
+from racfield.geometry.load import load_case
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.layout import place
+from racfield.cli import main
 
 DEFAULT_EXAMPLES = {"valid": 500, "mutated": 900, "text": 400, "text-mutated": 400, "bytes": 150}
 

@@ -25,13 +25,13 @@ import numpy as np
 import pytest
 import scipy.sparse as sp
 
-from fem import guards
-from fem.harmonic import BorderedFactorization, backward_error
-from fem.parallel import excitation_basis
-from fem.sweep import conductor_resistivities, mesh_case, problem_for, run_sweep
-from geometry.case import parse_case
-from geometry.layout import place
-from postprocess.cli import main
+from racfield.fem import guards
+from racfield.fem.harmonic import BorderedFactorization, backward_error
+from racfield.fem.parallel import excitation_basis
+from racfield.fem.sweep import conductor_resistivities, mesh_case, problem_for, run_sweep
+from racfield.geometry.case import parse_case
+from racfield.geometry.layout import place
+from racfield.cli import main
 
 import test_validation_round_wire as wire_case
 
@@ -219,10 +219,10 @@ def test_reduced_sweep_deviation_is_flagged(monkeypatch):
     normal = run_sweep(case, method="reduced")
     assert normal.sweep_info["method"] == "reduced" and normal.warnings == []
 
-    import fem.sweep
+    from racfield.fem import sweep as fem_sweep
 
-    original = fem.sweep.reduced_plan
-    monkeypatch.setattr(fem.sweep, "reduced_plan",
+    original = fem_sweep.reduced_plan
+    monkeypatch.setattr(fem_sweep, "reduced_plan",
                         lambda problem, freqs, connection: original(problem, freqs, connection,
                                                                     start=1, most=1, moments=1))
     crude = run_sweep(case, method="reduced")

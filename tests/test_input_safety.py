@@ -20,11 +20,13 @@ from pathlib import Path
 
 import pytest
 
-from geometry.case import load_case, parse_case
-from geometry.errors import CaseError
-from geometry.units import quantity
-from geometry.waveform import time_value
-from postprocess.cli import main
+from racfield.geometry.case import parse_case
+
+from racfield.geometry.load import load_case
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.case.units import quantity
+from racfield.geometry.case.waveform_input import time_value
+from racfield.cli import main
 
 GEOMETRY = Path(__file__).resolve().parents[1] / "geometry"
 CASES = Path(__file__).resolve().parents[1] / "cases"
@@ -51,7 +53,7 @@ CSV = "time_s,current_a\n0,0\n4e-6,2.0\n5e-6,0\n"
 def test_no_code_evaluation_in_the_case_reader():
     # rule (a): the modules that read a case call none of eval/exec/compile/__import__
     # and import nothing that runs code from data (pickle and the like)
-    for source in sorted(GEOMETRY.glob("*.py")):
+    for source in sorted(GEOMETRY.rglob("*.py")):
         tree = ast.parse(source.read_text(encoding="utf-8"), str(source))
         for node in ast.walk(tree):
             if isinstance(node, ast.Call) and isinstance(node.func, ast.Name):
@@ -244,7 +246,7 @@ def test_cases_folder_still_loads():
 
 def test_both_commands_take_the_flag():
     # rule (b): run and check accept --allow-outside-files; it is off unless given
-    from postprocess.cli import parser
+    from racfield.cli import parser
     for command in ("run", "check"):
         assert parser().parse_args([command, "case.toml", "--allow-outside-files"]).allow_outside_files is True
         assert parser().parse_args([command, "case.toml"]).allow_outside_files is False
@@ -253,7 +255,7 @@ def test_both_commands_take_the_flag():
 def test_study_points_inherit_allow_outside_files(tmp_path):
     # rule (b): a [study] point is made a case from the same file: the flag given for the
     # case holds for its points (and the refusal without it)
-    from geometry.case import study_case
+    from racfield.geometry.load import study_case
     folder, _ = _folders(tmp_path)
     path = folder / "study.toml"
     path.write_text(_waveform_case("../outside.csv") + '\n[[study.axis]]\nkey = "layer[1].turns"\n'

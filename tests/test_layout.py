@@ -12,9 +12,9 @@ import tomllib
 
 import pytest
 
-from geometry.case import parse_case
-from geometry.errors import CaseError
-from geometry.layout import place
+from racfield.geometry.case import parse_case
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.layout import place
 
 MM = 1e-3
 
@@ -314,7 +314,7 @@ def test_overlap_found_among_many_conductors():
 
 def test_more_than_the_conductor_limit_is_refused():
     # MAX_CONDUCTORS (10000): counted before anything is placed, named at the layer that passes it
-    from geometry.layout import MAX_CONDUCTORS
+    from racfield.geometry.layout import MAX_CONDUCTORS
     litz = '{ shape = "litz", strands = 5000, strand_diameter = "1 um", representation = "strands" }'
     err = refused(layer("a", litz, 1), layer("a", litz, 1), layer("b", litz, 1))
     assert MAX_CONDUCTORS == 10_000 and err.key == "layer[3]" and "10000 conductors" in err.problem
@@ -325,7 +325,7 @@ def test_ring_far_from_the_axis_has_the_straight_wire_resistance():
     # straight wire of length 2 pi R0; exact limit of the series a^2/(2 R0) + ...), and a
     # rectangle's 2 pi rho / (h ln(r2/r1)) tends to rho 2 pi r / (w h): computed without
     # cancellation even at a 1e9 ratio
-    from geometry.layout import Conductor, dc_resistance
+    from racfield.geometry.layout import Conductor, dc_resistance
     rho, r0 = 1.7241e-8, 1.0
     wire = Conductor(0, "a", 1, "round", 0.0, 0.0, 2e-9, 2e-9, "layer[1]")
     assert dc_resistance(wire, rho, r0) == pytest.approx(rho * 2 * math.pi * r0 / (math.pi * 1e-18), rel=1e-12)

@@ -8,14 +8,14 @@ import numpy as np
 import pytest
 from scipy.special import jv, jvp
 
-from fem.litz import (bundle_reluctivity, rayleigh_permeability, skin_factor,
+from racfield.fem.litz import (bundle_reluctivity, rayleigh_permeability, skin_factor,
                       strand_permeability)
-from fem.sweep import problem_for, run_sweep, mesh_case
-from fem.parallel import excitation_basis
-from geometry.case import HEXAGONAL_PACKING, parse_case, parallel_of, winding_conductors, winding_turns
-from geometry.errors import CaseError
-from geometry.layout import place
-from geometry.materials import MU0
+from racfield.fem.sweep import problem_for, run_sweep, mesh_case
+from racfield.fem.parallel import excitation_basis
+from racfield.geometry.case import HEXAGONAL_PACKING, parse_case, parallel_of, winding_conductors, winding_turns
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.layout import place
+from racfield.geometry.materials import MU0
 
 RHO = 1.7241e-8          # ohm*m, copper at 20 degC (IEC 60028)
 D_STRAND = 0.1e-3        # m

@@ -6,9 +6,9 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from postprocess.report import build_report, mmf_document
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.postprocess.report import build_report, mmf_document
 
 MAX_DEVIATION: dict[str, float] = {}
 

@@ -7,10 +7,10 @@ import math
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from geometry.errors import CaseError
-from postprocess.report import build_report, parallel_document
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.geometry.case.errors import CaseError
+from racfield.postprocess.report import build_report, parallel_document
 
 
 def _transformer(transposed: bool, frequencies) -> dict:

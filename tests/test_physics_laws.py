@@ -18,9 +18,9 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from postprocess.report import build_report
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.postprocess.report import build_report
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

@@ -20,9 +20,9 @@ import math
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from postprocess.report import build_report
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.postprocess.report import build_report
 
 import test_validation_dowell as dowell_case
 import test_validation_round_wire as wire_case

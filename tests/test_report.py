@@ -19,8 +19,8 @@ from pathlib import Path
 
 import pytest
 
-from postprocess.cli import main
-from postprocess.validation_status import VALIDATION
+from racfield.cli import main
+from racfield.postprocess.validation_status import VALIDATION
 
 README = Path(__file__).resolve().parents[1] / "README.md"
 
@@ -262,16 +262,16 @@ def test_report_unwritable_out(single, tmp_path, capsys):
 
 
 def test_new_writers_are_registered():
-    from postprocess.writers import WRITERS
+    from racfield.postprocess.writers import WRITERS
     missing = [name for name in NEW_WRITERS if name not in WRITERS]
     assert not missing, f"add {missing} to WRITERS in postprocess/writers/__init__.py"
 
 
 def test_drawings_planar_and_axisymmetric_core(tmp_path):
-    from fem.sweep import run_sweep
-    from geometry.case import load_case
-    from postprocess.report import build_report
-    from postprocess.writers import conductor_loss_plot, estimates_plot, geometry_plot
+    from racfield.fem.sweep import run_sweep
+    from racfield.geometry.load import load_case
+    from racfield.postprocess.report import build_report
+    from racfield.postprocess.writers import conductor_loss_plot, estimates_plot, geometry_plot
 
     axisymmetric = (BASE.replace("TITLE", "Tiny pot core").replace('length = "40 mm"', 'symmetry = "axisymmetric"')
                     .replace('height = "4 mm"', 'height = "4 mm"\ninner_radius = "2 mm"\nboundary = "core"')

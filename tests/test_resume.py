@@ -21,9 +21,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import load_case
-from postprocess.cli import main
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.load import load_case
+from racfield.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "cases" / "demo_transformer.toml"
@@ -117,7 +117,7 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
     case = _copy_case(DEMO, tmp_path)
     killed, clean = tmp_path / "killed", tmp_path / "clean"
     total = len(load_case(case).frequencies)
-    command = [sys.executable, "-m", "postprocess.cli", "run", str(case), "--exact", "--quiet"]
+    command = [sys.executable, "-m", "racfield", "run", str(case), "--exact", "--quiet"]
     process = subprocess.Popen(command + ["--out", str(killed)], cwd=ROOT,
                                stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     deadline = time.monotonic() + 120.0
@@ -151,7 +151,7 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
 def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path):
     """The reduced sweep rebuilds the same model on resume: points solved
     before the interruption plus the rest equal the uninterrupted sweep."""
-    from geometry.case import variant_cases
+    from racfield.geometry.case import variant_cases
     case = variant_cases(load_case(_small_study(tmp_path)))[0]
     clean = run_sweep(case)
     assert clean.sweep_info["method"] == "reduced"
@@ -176,7 +176,7 @@ def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path):
 def test_interrupt_leaves_a_partial_results_json_and_a_hint(tmp_path, capsys, monkeypatch):
     """Ctrl-C during a sweep: exit status 130, a valid partial results.json and
     a line telling how to resume."""
-    import fem.sweep as sweep_module
+    import racfield.fem.sweep as sweep_module
 
     original = sweep_module.run_sweep
 
@@ -191,7 +191,7 @@ def test_interrupt_leaves_a_partial_results_json_and_a_hint(tmp_path, capsys, mo
 
         return original(*args, on_point=hook, **kwargs)
 
-    monkeypatch.setattr("postprocess.cli.run_sweep", interrupted)
+    monkeypatch.setattr("racfield.cli.run_sweep", interrupted)
     case = _copy_case(DEMO, tmp_path)
     out = tmp_path / "out"
     assert main(["run", str(case), "--out", str(out), "--quiet", "--exact"]) == 130
@@ -209,7 +209,7 @@ def test_changed_case_is_refused_for_resume(tmp_path, capsys):
     (out / ".racfield").mkdir(parents=True)
     assert main(["run", str(case), "--out", str(out), "--quiet", "--resume"]) == EXIT_BAD_INPUT
     assert "holds no interrupted racfield run" in capsys.readouterr().err
-    from postprocess.checkpoint import Manifest, RunState, fingerprint
+    from racfield.checkpoint import Manifest, RunState, fingerprint
     state = RunState(out)
     state.manifest = Manifest(fingerprint(case, load_case(case)), {"exact": False}, [], [])
     state.save()

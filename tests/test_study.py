@@ -28,9 +28,9 @@ from pathlib import Path
 
 import pytest
 
-from geometry.case import load_case, study_case
-from geometry.study import study_points
-from postprocess.cli import main
+from racfield.geometry.load import load_case, study_case
+from racfield.geometry.case.study import study_points
+from racfield.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
 EXIT_OK, EXIT_BAD_INPUT, EXIT_PARTIAL = 0, 2, 3
@@ -175,7 +175,7 @@ def _run_and_kill_a_busy_worker(cluster, case: Path, out: Path) -> tuple[int, st
     with Client(cluster) as client:
         pids = client.run(os.getpid)
         assert len(pids) == 2
-        run = subprocess.Popen([sys.executable, "-m", "postprocess.cli", "run", str(case), "--quiet",
+        run = subprocess.Popen([sys.executable, "-m", "racfield", "run", str(case), "--quiet",
                                 "--cluster", cluster.scheduler_address, "--out", str(out)],
                                cwd=ROOT, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
         try:

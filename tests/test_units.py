@@ -11,8 +11,8 @@ import math
 
 import pytest
 
-from geometry.errors import CaseError
-from geometry.units import quantity
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.case.units import quantity
 
 KEY = "layer[1].conductor.diameter"
 

@@ -49,9 +49,9 @@ import math
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from postprocess.report import build_report, results_document
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.postprocess.report import build_report, results_document
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

@@ -33,12 +33,12 @@ import pytest
 from skfem import Functional
 from skfem.helpers import dot
 
-from fem.problem import WindowProblem
-from fem.probe import field_strength_at, flux_density_at, locate
-from fem.sweep import conductor_resistivities, mesh_case, run_sweep
-from geometry.case import parse_case
-from geometry.layout import Conductor, place
-from geometry.mesher import CORE, MeshSizing, build_mesh
+from racfield.fem.problem import WindowProblem
+from racfield.fem.probe import field_strength_at, flux_density_at, locate
+from racfield.fem.sweep import conductor_resistivities, mesh_case, run_sweep
+from racfield.geometry.case import parse_case
+from racfield.geometry.layout import Conductor, place
+from racfield.geometry.mesher import CORE, MeshSizing, build_mesh
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

@@ -18,10 +18,10 @@ import math
 
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from geometry.materials import material, skin_depth
-from postprocess.report import build_report
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.geometry.materials import material, skin_depth
+from racfield.postprocess.report import build_report
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

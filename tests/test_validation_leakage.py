@@ -43,8 +43,8 @@ import numpy as np
 import pytest
 from scipy.integrate import quad
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

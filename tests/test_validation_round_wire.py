@@ -23,9 +23,9 @@ import numpy as np
 import pytest
 from scipy.special import jv
 
-from fem.sweep import run_sweep
-from geometry.case import parse_case
-from postprocess.report import build_report
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.postprocess.report import build_report
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

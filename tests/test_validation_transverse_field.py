@@ -28,9 +28,9 @@ import pytest
 from scipy.integrate import quad
 from scipy.special import jv
 
-from fem.problem import WindowProblem
-from geometry.layout import Conductor
-from geometry.mesher import MeshSizing, build_mesh
+from racfield.fem.problem import WindowProblem
+from racfield.geometry.layout import Conductor
+from racfield.geometry.mesher import MeshSizing, build_mesh
 
 #: measured maximum relative errors, for the README validation table
 MAX_REL_ERROR: dict[str, float] = {}

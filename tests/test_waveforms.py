@@ -20,14 +20,14 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from fem.sweep import run_sweep
-from geometry.case import load_case, parse_case
-from geometry.errors import CaseError
-from geometry.waveform import Waveform, sample, spectrum
-from postprocess.cli import main
-from postprocess.harmonics import harmonic_losses
-from postprocess.impedance import winding_loss_matrices
-from postprocess.report import build_report
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.case import parse_case
+from racfield.geometry.load import load_case
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.case.waveform import Waveform, sample, spectrum
+from racfield.cli import main
+from racfield.postprocess.impedance import winding_loss_matrices
+from racfield.postprocess.report import build_report
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
 RHO20_CU, ALPHA_CU = 1.7241e-8, 0.00393   # IEC 60028 annealed copper, ohm*m at 20 degC and 1/K
@@ -155,7 +155,7 @@ def _losses(doc: dict, sweep=None):
     case = parse_case(doc)
     sweep = sweep or run_sweep(case)
     report = build_report(case, sweep)
-    return case, sweep, report, harmonic_losses(report)
+    return case, sweep, report, report.harmonics
 
 
 def test_sine_waveform_equals_the_current_phase_case():
@@ -221,7 +221,7 @@ def test_loss_depends_on_the_relative_phase_of_two_waveforms():
     assert all(n % 2 == 1 for n in case.waveform.harmonics) and len(case.waveform.harmonics) > 2
 
     def total(doc) -> float:
-        return harmonic_losses(build_report(parse_case(doc), sweep)).total_loss_w
+        return build_report(parse_case(doc), sweep).harmonics.total_loss_w
 
     losses = {d: total(_pair(d)) for d in (0.0, 2.5, 5.0, 7.5)}
     alone = total(_pair(0.0, "idle")) + total(_pair(0.0, "alone"))

@@ -11,7 +11,7 @@ from matplotlib.patches import Rectangle
 from matplotlib.tri import Triangulation
 
 from ..plotting import FIELD_MAP, linear_subtriangles, new_figure, save
-from geometry.mesher import CORE
+from racfield.geometry.mesher import CORE
 
 from ..report import Report, format_frequency
 

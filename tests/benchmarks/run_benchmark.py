@@ -22,8 +22,8 @@ from pathlib import Path
 
 import numpy as np
 
-from fem.sweep import run_sweep
-from geometry.case import load_case
+from racfield.fem.sweep import run_sweep
+from racfield.geometry.load import load_case
 
 HERE = Path(__file__).resolve().parent
 

@@ -27,7 +27,7 @@ import tempfile
 import time
 from pathlib import Path
 
-from postprocess.execution import default_workers
+from racfield.execution import default_workers
 
 ROOT = Path(__file__).resolve().parents[2]
 TIMES = re.compile(r"times: mesh ([\d.]+) s, assembly ([\d.]+) s, solve ([\d.]+) s")
@@ -36,7 +36,7 @@ TIMES = re.compile(r"times: mesh ([\d.]+) s, assembly ([\d.]+) s, solve ([\d.]+)
 def _run(case: str, out: Path, extra: list[str]) -> tuple[float, str]:
     """Wall time of one ``racfield run`` (s) and its standard output."""
     start = time.perf_counter()
-    done = subprocess.run([sys.executable, "-m", "postprocess.cli", "run", case, "--quiet", "--out", str(out),
+    done = subprocess.run([sys.executable, "-m", "racfield", "run", case, "--quiet", "--out", str(out),
                            *extra], cwd=ROOT, capture_output=True, text=True)
     elapsed = time.perf_counter() - start
     if done.returncode != 0:

@@ -16,9 +16,9 @@ from dataclasses import replace
 
 import numpy as np
 
-from fem.sweep import run_sweep
+from racfield.fem.sweep import run_sweep
 
-from .report import Report, format_frequency, winding_results
+from racfield.postprocess.report import Report, format_frequency, winding_results
 
 #: element sizes of the refined mesh are the sweep's divided by this
 REFINEMENT = 2.0

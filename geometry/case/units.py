@@ -1,4 +1,5 @@
-"""Quantities given as SI numbers or as strings with units.
+"""Quantities given as SI numbers or as strings with units, and frequencies
+written back for people.
 
 ``quantity("0.45 mm", "length", "layer[1].conductor.diameter")`` returns
 ``0.00045``.  Temperatures are returned in degrees Celsius (the case speaks of
@@ -12,25 +13,26 @@ import re
 
 from .errors import CaseError
 
-_PREFIX = {"G": 1e9, "M": 1e6, "k": 1e3, "": 1.0, "m": 1e-3, "u": 1e-6,
-           "\u00b5": 1e-6, "\u03bc": 1e-6, "n": 1e-9}
+_PREFIX = {"T": 1e12, "G": 1e9, "M": 1e6, "k": 1e3, "": 1.0, "m": 1e-3, "u": 1e-6,
+           "\u00b5": 1e-6, "\u03bc": 1e-6, "n": 1e-9, "p": 1e-12}
 
 # kind -> (SI unit symbol, {extra unit spelling: factor to SI})
 _KINDS = {
     "length": ("m", {"cm": 1e-2, "mil": 25.4e-6, "in": 25.4e-3}),
     "frequency": ("Hz", {}),
     "current": ("A", {}),
+    "time": ("s", {}),
     "angle": ("deg", {"rad": 180.0 / math.pi, "\u00b0": 1.0}),
     "resistivity": ("ohm*m", {"ohm m": 1.0, "ohm*cm": 1e-2, "uohm*cm": 1e-8}),
 }
-_PREFIXABLE = {"length": True, "frequency": True, "current": True,
+_PREFIXABLE = {"length": True, "frequency": True, "current": True, "time": True,
                "angle": False, "resistivity": False}
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 
 EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "current": '"1.5 A"',
-            "angle": '"30 deg"', "temperature": '"100 degC"',
+            "angle": '"30 deg"', "temperature": '"100 degC"', "time": '"10 us"',
             "resistivity": '"1.72e-8 ohm*m"'}
 
 
@@ -39,7 +41,8 @@ EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "c
 #: lose the result (the skin depth at 5e-324 Hz, the area of a 1e-300 m wire)
 LIMITS = {"length": (1e-9, 1e3, "0 or between 1 nm and 1 km"),
           "frequency": (1e-3, 1e12, "0 or between 1 mHz and 1 THz"),
-          "current": (0.0, 1e6, "at most 1 MA")}
+          "current": (0.0, 1e6, "at most 1 MA"),
+          "time": (0.0, 1e3, "at most 1000 s")}
 
 
 def in_range(number: float, kind: str, key: str, value: object = None) -> float:
@@ -82,7 +85,8 @@ def quantity(value: object, kind: str, key: str) -> float:
     """Convert ``value`` (a number in SI, or a string with a unit) to a float.
 
     ``kind`` is one of ``length`` (m), ``frequency`` (Hz), ``current`` (A),
-    ``angle`` (degrees), ``temperature`` (degC) or ``resistivity`` (ohm*m).
+    ``time`` (s), ``angle`` (degrees), ``temperature`` (degC) or
+    ``resistivity`` (ohm*m).
     Raises :class:`CaseError` naming ``key`` on anything else.
     """
     if isinstance(value, bool):
@@ -131,3 +135,12 @@ def quantity(value: object, kind: str, key: str) -> float:
     if not math.isfinite(number * factor):
         raise CaseError(key, f"{value!r} is not a finite number", f"give a finite {kind}")
     return number * factor
+
+
+def format_frequency(f: float) -> str:
+    """A frequency in Hz for people: '250 kHz', '1.5 MHz', '0 Hz (DC)'."""
+    if f == 0.0:
+        return "0 Hz (DC)"
+    exponent = min(max(int(math.floor(math.log10(abs(f)) / 3)), 0), 4)
+    unit = ["Hz", "kHz", "MHz", "GHz", "THz"][exponent]
+    return f"{f / 10 ** (3 * exponent):.4g} {unit}"

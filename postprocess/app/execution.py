@@ -22,9 +22,9 @@ from typing import Callable, Iterable
 
 from threadpoolctl import threadpool_limits
 
-from fem.sweep import SweepResult, run_sweep
-from geometry.case import Case
-from geometry.errors import CaseError
+from racfield.fem.sweep import SweepResult, run_sweep
+from racfield.geometry.case import Case
+from racfield.geometry.case.errors import CaseError
 
 
 @dataclass
@@ -55,8 +55,8 @@ def _render(case: Case, sweep: SweepResult, check_mesh: bool) -> tuple[dict[str,
     from pathlib import Path
 
     from .mesh_check import mesh_check
-    from .report import build_report
-    from .writers import write_all
+    from racfield.postprocess.report import build_report
+    from racfield.postprocess.writers import write_all
 
     report = build_report(case, sweep)
     if check_mesh:

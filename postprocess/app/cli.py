@@ -20,24 +20,25 @@ from pathlib import Path
 
 from threadpoolctl import threadpool_limits
 
-from fem.sweep import conductor_resistivities, run_sweep
-from geometry.case import Case, load_case, study_case, variant_cases, winding_turns
-from geometry.errors import CaseError
-from geometry.layout import dc_resistance, place
-from geometry.materials import material, skin_depth
+from racfield.fem.sweep import conductor_resistivities, run_sweep
+from racfield.geometry.case import Case, variant_cases, winding_turns
+from racfield.geometry.load import load_case, study_case
+from racfield.geometry.case.errors import CaseError
+from racfield.geometry.layout import dc_resistance, place
+from racfield.geometry.materials import material, skin_depth
 
-from geometry.units import quantity
+from racfield.geometry.case.units import quantity
 
-from .atomic import replace_bytes
+from racfield.postprocess.atomic import replace_bytes
 from .checkpoint import RunState, fingerprint
-from .comparison import COMPARISON_FILES, STUDY_FILES, folder_name, summary, write_comparison, write_study_table
+from racfield.postprocess.comparison import COMPARISON_FILES, STUDY_FILES, folder_name, summary, write_comparison, write_study_table
 from .execution import Job, Outcome, default_workers, run_jobs
-from .harmonics import harmonics_table, waveform_lines
-from .html_report import REPORT_NAME, write_report
-from .impedance import losses_from_document
+from racfield.postprocess.harmonics import harmonics_table, waveform_lines
+from racfield.postprocess.html_report import REPORT_NAME, write_report
+from racfield.postprocess.impedance import losses_from_document
 from .mesh_check import mesh_check, mesh_check_line
-from .report import CAUTION, build_report, format_frequency, parallel_document, results_document
-from .writers import WRITERS, results_json, write_all
+from racfield.postprocess.report import CAUTION, build_report, format_frequency, parallel_document, results_document
+from racfield.postprocess.writers import WRITERS, results_json, write_all
 
 EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT, EXIT_PARTIAL = 0, 1, 2, 3
 

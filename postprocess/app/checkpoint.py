@@ -21,11 +21,11 @@ from pathlib import Path
 
 import numpy as np
 
-from fem.sweep import PointResult
-from geometry.case import Case
-from geometry.errors import CaseError
+from racfield.fem.sweep import PointResult
+from racfield.geometry.case import Case
+from racfield.geometry.case.errors import CaseError
 
-from .atomic import replace_bytes, replace_text
+from racfield.postprocess.atomic import replace_bytes, replace_text
 
 STATE = ".racfield"
 MANIFEST = "manifest.json"

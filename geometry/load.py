@@ -1,0 +1,36 @@
+"""A case as the solver takes it: the case file read and checked
+(:mod:`racfield.geometry.case`) and every arrangement's conductors placed
+(:mod:`racfield.geometry.layout`), so that a command stops on bad input
+before it prints, writes or solves anything."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from .case import Case, CaseError, StudyPoint, parse_case, point_case, read_document, variant_cases
+from .layout import place
+
+
+def load_case(path: str | Path, allow_outside_files: bool = False) -> Case:
+    """Read and check the case file at ``path``, its conductor layout included.
+    Files the case names (waveform ``file``) are taken from the case file's
+    folder; one outside it is refused unless ``allow_outside_files``."""
+    name = str(path)
+    return checked_layout(parse_case(read_document(path), name, allow_outside_files))
+
+
+def checked_layout(case: Case) -> Case:
+    """``case`` itself, once every arrangement's conductors are placed
+    (CaseError naming the case file otherwise)."""
+    try:
+        for arrangement in variant_cases(case):
+            place(arrangement)
+    except CaseError as error:
+        raise error.in_file(case.path) if case.path else error
+    return case
+
+
+def study_case(case: Case, point: StudyPoint) -> Case:
+    """The case of one study point, its layout checked (CaseError, naming the
+    file, if its document is bad)."""
+    return checked_layout(point_case(case, point))

@@ -9,6 +9,7 @@ from pathlib import Path
 
 from .case import Case, CaseError, StudyPoint, parse_case, point_case, read_document, variant_cases
 from .layout import place
+from .sizing import check_mesh_bound
 
 
 def load_case(path: str | Path, allow_outside_files: bool = False) -> Case:
@@ -20,11 +21,11 @@ def load_case(path: str | Path, allow_outside_files: bool = False) -> Case:
 
 
 def checked_layout(case: Case) -> Case:
-    """``case`` itself, once every arrangement's conductors are placed
-    (CaseError naming the case file otherwise)."""
+    """``case`` itself, once every arrangement's conductors are placed and its
+    mesh is within bounds (CaseError naming the case file otherwise)."""
     try:
         for arrangement in variant_cases(case):
-            place(arrangement)
+            check_mesh_bound(arrangement, place(arrangement))
     except CaseError as error:
         raise error.in_file(case.path) if case.path else error
     return case

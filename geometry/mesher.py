@@ -16,24 +16,12 @@ import numpy as np
 
 from .case import Core
 from .layout import Conductor
+from .sizing import MeshSizing, surface_size  # noqa: F401 (mesher's public names)
 
 AIR = -1
 """Region number of air (non-conducting, non-magnetic) elements."""
 CORE = -2
 """Region number of core (magnetic, non-conducting) elements."""
-
-
-@dataclass(frozen=True)
-class MeshSizing:
-    """Element-size controls in m (and plain factors)."""
-
-    skin_depth: float           #: smallest skin depth at the highest frequency, m (inf at DC)
-    per_skin_depth: float = 1.5  #: elements per skin depth at conductor surfaces
-    per_circle: int = 28         #: elements around a round conductor at least
-    per_side: int = 2            #: elements across the shortest side of a rectangle at least
-    grading: float = 0.35        #: size growth per unit distance inside conductors
-    air_grading: float = 0.8     #: size growth per unit distance in air
-    density: float = 1.0         #: overall refinement factor (>1 finer)
 
 
 @dataclass(frozen=True)
@@ -62,15 +50,6 @@ class WindowMesh:
     @property
     def elements(self) -> int:
         return self.triangles.shape[1]
-
-
-def surface_size(conductor: Conductor, sizing: MeshSizing) -> float:
-    """Element size in m at the surface of ``conductor``."""
-    if conductor.shape == "round":
-        geometric = math.pi * conductor.width / sizing.per_circle
-    else:
-        geometric = min(conductor.width, conductor.height) / sizing.per_side
-    return min(geometric, sizing.skin_depth / sizing.per_skin_depth) / sizing.density
 
 
 def _core_body(occ, core: Core, width: float, height: float) -> list[tuple[int, int]]:

@@ -11,13 +11,14 @@ from __future__ import annotations
 import csv
 import io
 import json
-import re
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 from matplotlib import colormaps
 from matplotlib.ticker import EngFormatter, NullFormatter
+
+from racfield.geometry.case.names import folder_slug
 
 from .plotting import LINE_MAP, line_colours, new_figure, save
 from .report import format_frequency
@@ -36,8 +37,8 @@ class VariantRow:
 
 
 def folder_name(variant: str) -> str:
-    """A file-system-safe folder name for a variant."""
-    return re.sub(r"[^A-Za-z0-9._-]+", "_", variant).strip("_") or "variant"
+    """A file-system-safe folder name for a variant (the name itself is kept in the results)."""
+    return folder_slug(variant)
 
 
 #: the files :func:`write_comparison` writes

@@ -14,14 +14,18 @@ from dataclasses import replace
 from pathlib import Path
 
 from .checks import check_arrangement
-from .errors import CaseError
+from .errors import CaseError, printable
+from .files import NotReadable, read_bytes
 from .model import Case, Winding, variant_cases
+from .names import check_name, check_text, check_unique
 from .sections import (model_notes, plan_waveforms, read_compare, read_core, read_frequencies, read_layers,
                        read_mesh, read_model, read_parallels, read_placed, read_variants, read_waveform_settings,
                        read_window, read_winding_waveform)
 from ..materials import ALIASES, MATERIALS
 from .study import VARIANT_KEY, StudyPoint, point_document, study_points
 from .table import Table, list_of_tables
+
+MAX_DEPTH = 16  #: nesting of tables and arrays a case may have (waveform samples and variant conductors reach 6)
 
 
 def parse_case(doc: dict, path: str = "", allow_outside_files: bool = False) -> Case:
@@ -34,6 +38,7 @@ def parse_case(doc: dict, path: str = "", allow_outside_files: bool = False) -> 
     files also when they lie outside that folder (refused by default; the
     study's points inherit it)."""
     try:
+        check_depth(doc)
         if isinstance(doc, dict) and "study" in doc:
             points = study_points(doc["study"])
             base = {k: v for k, v in doc.items() if k != "study"}
@@ -49,9 +54,8 @@ def parse_case(doc: dict, path: str = "", allow_outside_files: bool = False) -> 
 
 def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     top = Table(doc, "")
-    title = top.raw("title", Path(path).stem if path else "case")
-    if not isinstance(title, str):
-        raise CaseError("title", "expected text", 'write title = "my transformer"')
+    title = top.raw("title", None)
+    title = check_text(title, "title") if title is not None else printable(Path(path).stem if path else "case")
     model = read_model(Table(top.raw("model", {}), "model"))
     settings = read_waveform_settings(top)
     frequencies = () if settings else read_frequencies(Table(top.raw("sweep", None, required=True), "sweep"))
@@ -59,11 +63,8 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
 
     windings: list[Winding] = []
     for t in list_of_tables(top, "winding"):
-        name = t.raw("name", None, required=True)
-        if not isinstance(name, str) or not name.strip():
-            raise CaseError(t.key("name"), "expected a non-empty name", 'write name = "primary"')
-        if any(w.name == name for w in windings):
-            raise CaseError(t.key("name"), f'winding "{name}" is defined twice', "give each winding its own name")
+        name = check_name(t.raw("name", None, required=True), t.key("name"), path=False)
+        check_unique(name, [w.name for w in windings], t.key("name"), "winding")
         mat = t.text("material", "copper", tuple(MATERIALS) + tuple(ALIASES))
         mat = ALIASES.get(mat, mat)
         waveform = read_winding_waveform(t, settings, path, allow_outside_files)
@@ -104,9 +105,11 @@ def read_document(path: str | Path) -> dict:
     path = Path(path)
     name = str(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        text = read_bytes(path).decode("utf-8")
     except FileNotFoundError:
         raise CaseError("", "file not found", "check the path to the case file", name) from None
+    except NotReadable as error:
+        raise CaseError("", str(error), "give a case file (TOML text) of ordinary size", name) from None
     except UnicodeDecodeError as error:
         line = error.object[:error.start].count(b"\n") + 1
         raise CaseError("", f"is not UTF-8 text: byte 0x{error.object[error.start]:02x} on line {line}",
@@ -126,6 +129,21 @@ def parse_toml(text: str, name: str = "") -> dict:
     except ValueError as error:  # an integer of more than 4300 digits (Python's int/str limit)
         raise CaseError("", f"TOML value cannot be read: {error.args[0].split(':')[0]}",
                         "give numbers of ordinary size", name) from None
+    except RecursionError:
+        raise CaseError("", f"arrays or tables are nested more than {MAX_DEPTH} deep",
+                        "write the case with ordinary tables and lists", name) from None
+
+
+def check_depth(doc: object, name: str = "") -> None:
+    """Refuse a document nested deeper than :data:`MAX_DEPTH` (walked without recursion)."""
+    stack = [(doc, 0)]
+    while stack:
+        node, depth = stack.pop()
+        if depth > MAX_DEPTH:
+            raise CaseError("", f"arrays or tables are nested more than {MAX_DEPTH} deep",
+                            "write the case with ordinary tables and lists", name)
+        children = node.values() if isinstance(node, dict) else node if isinstance(node, list) else ()
+        stack.extend((child, depth + 1) for child in children if isinstance(child, (dict, list)))
 
 
 def point_case(case: Case, point: StudyPoint) -> Case:

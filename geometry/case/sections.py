@@ -12,11 +12,12 @@ from pathlib import Path
 import numpy as np
 
 from .errors import CaseError
+from .names import check_name, check_unique, name_key
 from .model import (ALIGNS, BASE_VARIANT, BOUNDARIES, DEFAULT_PACKING, HEXAGONAL_PACKING, LEGS,
                     MAX_FREQUENCIES, REPRESENTATIONS, SHAPES, STACKINGS, SYMMETRIES, ConductorSpec, Core,
                     Gap, Layer, MeshOptions, Model, Parallel, PlacedConductor, Variant, Window, Winding)
 from .table import Table, list_of_tables, winding_ref
-from .units import in_range, quantity
+from .units import LIMITS, in_range, quantity
 from .waveform import WaveformSettings, Waveform, fundamental_phasor, plan, sine_of, spectrum
 from .waveform_input import parse_settings, parse_waveform
 
@@ -197,12 +198,11 @@ def read_variants(top: Table, names: list[str]) -> list[Variant]:
     """[[variant]] tables: a name and their own [[variant.layer]] / [[variant.conductor]] lists."""
     variants: list[Variant] = []
     for t in list_of_tables(top, "variant"):
-        name = t.raw("name", None, required=True)
-        if not isinstance(name, str) or not name.strip() or "/" in name or "\\" in name:
-            raise CaseError(t.key("name"), "expected a non-empty name without slashes", 'write name = "P-S-P"')
-        if any(v.name == name for v in variants) or name == BASE_VARIANT:
-            raise CaseError(t.key("name"), f'variant "{name}" is defined twice (or is "{BASE_VARIANT}")',
-                            "give each variant its own name")
+        name = check_name(t.raw("name", None, required=True), t.key("name"), '"P-S-P"')
+        if name_key(name) == BASE_VARIANT:
+            raise CaseError(t.key("name"), f'"{BASE_VARIANT}" is the name of the case\'s own arrangement',
+                            "give the variant another name")
+        check_unique(name, [v.name for v in variants], t.key("name"), "variant")
         if not t.has("layer") and not t.has("conductor"):
             raise CaseError(t.path, "has no [[variant.layer]] or [[variant.conductor]]",
                             "list the variant's layers (they replace the case's layers)")
@@ -341,7 +341,15 @@ def plan_waveforms(windings: list[Winding], settings: WaveformSettings
     fundamental phasor (the excitation of the per-frequency tables)."""
     spectra = [spectrum(w.waveform or sine_of(w.current, w.phase_deg), settings.period,
                         settings.max_harmonic, settings.fraction) for w in windings]
+    for k, s in enumerate(spectra):
+        if 0.0 < s.rms < LIMITS["current"][0]:
+            raise CaseError(f"winding[{k + 1}].waveform", f"the RMS current is {s.rms:.3g} A, below 1 nA",
+                            "give the current in A (a waveform of all zeros for an idle winding)")
     settings = plan(settings, spectra)
+    top = max(settings.frequencies)
+    if top > LIMITS["frequency"][1]:
+        raise CaseError("waveform.period", f"the harmonics to solve reach {top:.4g} Hz, above 1 THz",
+                        "give a longer period, or a lower waveform.max_harmonic")
     out, notes = [], []
     for k, (w, s) in enumerate(zip(windings, spectra)):
         current, phase = fundamental_phasor(s)

@@ -26,7 +26,8 @@ import itertools
 import re
 from dataclasses import dataclass
 
-from .errors import CaseError
+from .errors import CaseError, printable
+from .names import MAX_NAME, check_name, folder_slug, name_key
 
 _STEP = re.compile(r"([A-Za-z_][A-Za-z0-9_]*)(?:\[(\d+)\])?$")
 VARIANT_KEY = "variant"
@@ -42,9 +43,16 @@ class StudyPoint:
 
 
 def _label(value: object) -> str:
+    """A value as it appears in a point's name: printable, at most 40 characters."""
     if isinstance(value, (str, int, float, bool)):
-        return str(value)
+        text = printable(str(value) if not isinstance(value, int) or abs(value) < 10 ** 30 else "a huge integer")
+        return text if len(text) <= 40 else text[:37] + "..."
     return "table"
+
+
+def _bounded(name: str) -> str:
+    """A generated point name cut to :data:`MAX_NAME` characters."""
+    return name if len(name) <= MAX_NAME else name[: MAX_NAME - 3] + "..."
 
 
 def _check_path(key: object, where: str) -> str:
@@ -79,7 +87,7 @@ def study_points(table: object) -> list[StudyPoint]:
             if not isinstance(p, dict) or not p:
                 raise CaseError(where, "expected a table of key path = value", 'write { "gap[1].length" = "1 mm" }')
             values = tuple((_check_path(k, where), v) for k, v in p.items())
-            out.append(StudyPoint(", ".join(f"{k}={_label(v)}" for k, v in values), values))
+            out.append(StudyPoint(_bounded(", ".join(f"{printable(k)}={_label(v)}" for k, v in values)), values))
         return _unique(out)
     mode = table.get("mode", "product")
     if mode not in ("product", "zip"):
@@ -96,6 +104,8 @@ def study_points(table: object) -> list[StudyPoint]:
         names = axis.get("labels", [_label(v) for v in values])
         if not isinstance(names, list) or len(names) != len(values) or not all(isinstance(n, str) for n in names):
             raise CaseError(f"{where}.labels", "expected one text label per value", 'write labels = ["thin", "thick"]')
+        if "labels" in axis:
+            names = [check_name(n, f"{where}.labels[{j + 1}]", '"thin"') for j, n in enumerate(names)]
         keys.append(key)
         lists.append(list(values))
         labels.append([n if n != "table" else f"{key}#{j + 1}" for j, n in enumerate(names)])
@@ -112,19 +122,23 @@ def study_points(table: object) -> list[StudyPoint]:
     short = [s if last.count(s) == 1 else k for s, k in zip(last, keys)]
     for combo in combos:
         values = tuple((keys[a], lists[a][j]) for a, j in enumerate(combo))
-        name = ", ".join(f"{short[a]}={labels[a][j]}" if keys[a] != VARIANT_KEY else labels[a][j]
+        name = ", ".join(f"{printable(short[a])}={labels[a][j]}" if keys[a] != VARIANT_KEY else labels[a][j]
                          for a, j in enumerate(combo))
-        out.append(StudyPoint(name, values))
+        out.append(StudyPoint(_bounded(name), values))
     return _unique(out)
 
 
 def _unique(points: list[StudyPoint]) -> list[StudyPoint]:
-    seen: dict[str, int] = {}
+    """Points with names that do not collide on a file system (a repeat gets " (2)", ...)."""
+    seen: set[str] = set()
     out = []
     for p in points:
-        n = seen.get(p.name, 0)
-        seen[p.name] = n + 1
-        out.append(p if n == 0 else StudyPoint(f"{p.name} ({n + 1})", p.values))
+        name, n = p.name, 1
+        while name_key(name) in seen or "/" + folder_slug(name).lower() in seen:
+            n += 1
+            name = f"{p.name} ({n})"
+        seen.update((name_key(name), "/" + folder_slug(name).lower()))
+        out.append(p if name == p.name else StudyPoint(name, p.values))
     return out
 
 

@@ -41,7 +41,7 @@ EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "c
 #: lose the result (the skin depth at 5e-324 Hz, the area of a 1e-300 m wire)
 LIMITS = {"length": (1e-9, 1e3, "0 or between 1 nm and 1 km"),
           "frequency": (1e-3, 1e12, "0 or between 1 mHz and 1 THz"),
-          "current": (0.0, 1e6, "at most 1 MA"),
+          "current": (1e-9, 1e6, "0 or between 1 nA and 1 MA"),
           "time": (0.0, 1e3, "at most 1000 s")}
 
 

@@ -10,6 +10,7 @@ import math
 from pathlib import Path
 
 from .errors import CaseError
+from .files import NotReadable, read_bytes
 from .table import Table
 from .units import EXAMPLES, LIMITS, in_range, quantity
 from .waveform import (DEFAULT_FRACTION, DEFAULT_MAX_HARMONIC, MAX_HARMONIC_LIMIT, SHAPES, SPAN_TOLERANCE,
@@ -159,7 +160,9 @@ def read_samples(path: Path, name: str, key: str) -> list[tuple[float, float]]:
     """Rows (time s, current A) of a two-column CSV file with a header line;
     blank lines and lines starting with # are skipped."""
     try:
-        text = path.read_text(encoding="utf-8-sig")
+        text = read_bytes(path).decode("utf-8-sig")
+    except NotReadable as error:
+        raise CaseError(key, f'"{name}" {error}', "give a CSV text file with columns time_s,current_a") from None
     except OSError as error:
         raise CaseError(key, f'cannot read "{name}" ({error.strerror or error.__class__.__name__})',
                         "give a CSV file with a header line and two columns time_s,current_a "

@@ -105,13 +105,22 @@ class RunState:
         return path.relative_to(self.folder).as_posix()
 
     def claim(self, paths: list[Path], force: bool, case_file: str) -> None:
-        """Refuse (CaseError) to overwrite an existing file racfield did not write."""
-        if force:
-            return
+        """Refuse (CaseError) a path outside the folder, or one that would
+        overwrite an existing file racfield did not write.  In a folder with a
+        manifest the paths are recorded before anything is written, so that a
+        run killed while it writes can be rerun or resumed without --force."""
+        root = self.folder.resolve()
         for path in paths:
-            if path.exists() and self._relative(path) not in self.manifest.files and not path.is_dir():
-                raise CaseError("--out", f"{path} exists and was not written by racfield",
-                                "move it away, name another folder, or add --force", case_file)
+            if not path.resolve().is_relative_to(root):
+                raise CaseError("--out", f"{path} lies outside the results folder {self.folder}",
+                                "report this case file: a name in it should have been refused", case_file)
+        if not force:
+            for path in paths:
+                if path.exists() and self._relative(path) not in self.manifest.files and not path.is_dir():
+                    raise CaseError("--out", f"{path} exists and was not written by racfield",
+                                    "move it away, name another folder, or add --force", case_file)
+        if self.exists:
+            self.record(paths)
 
     def record(self, paths: list[Path]) -> None:
         self.manifest.files += [self._relative(p) for p in paths]

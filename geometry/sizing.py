@@ -1,0 +1,71 @@
+"""Element sizes of the window mesh, and the bound on its size a case must
+respect before anything is meshed.
+
+The size at conductor surfaces follows the skin depth at the mesh frequency
+(``[mesh] frequency``, else the highest solved frequency), scaled by
+``[mesh] density``.  From it the number of element edges on the conductor
+surfaces follows without meshing; the whole mesh holds about 5 to 12
+elements per surface edge (measured on the cases in ``cases/``), so a bound on
+the surface edges bounds the work.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from .case import Case, CaseError
+from .layout import Conductor
+from .materials import material, skin_depth
+
+#: the most element edges on conductor surfaces a case may ask for: about 1 to 2.5 million
+#: unknowns, near what a 24 GiB machine factorizes (768 round wires at 3 MHz: 48 000 edges,
+#: 1.04 million unknowns, 8 GB)
+MAX_SURFACE_EDGES = 100_000
+
+
+@dataclass(frozen=True)
+class MeshSizing:
+    """Element-size controls in m (and plain factors)."""
+
+    skin_depth: float           #: smallest skin depth at the highest frequency, m (inf at DC)
+    per_skin_depth: float = 1.5  #: elements per skin depth at conductor surfaces
+    per_circle: int = 28         #: elements around a round conductor at least
+    per_side: int = 2            #: elements across the shortest side of a rectangle at least
+    grading: float = 0.35        #: size growth per unit distance inside conductors
+    air_grading: float = 0.8     #: size growth per unit distance in air
+    density: float = 1.0         #: overall refinement factor (>1 finer)
+
+
+def surface_size(conductor: Conductor, sizing: MeshSizing) -> float:
+    """Element size in m at the surface of ``conductor``."""
+    if conductor.shape == "round":
+        geometric = math.pi * conductor.width / sizing.per_circle
+    else:
+        geometric = min(conductor.width, conductor.height) / sizing.per_side
+    return min(geometric, sizing.skin_depth / sizing.per_skin_depth) / sizing.density
+
+
+def case_sizing(case: Case, conductors: list[Conductor]) -> MeshSizing:
+    """The sizing of ``case``'s mesh: the smallest skin depth of its conductors'
+    materials at the mesh frequency, and ``[mesh] density``."""
+    rho = min(material(case.winding(c.winding).material).resistivity(case.model.temperature_c) for c in conductors)
+    return MeshSizing(skin_depth=skin_depth(rho, case.mesh_frequency), density=case.mesh.density)
+
+
+def surface_edges(conductors: list[Conductor], sizing: MeshSizing) -> float:
+    """Element edges on all conductor surfaces (perimeter over surface size)."""
+    return sum((math.pi * c.width if c.shape == "round" else 2.0 * (c.width + c.height)) / surface_size(c, sizing)
+               for c in conductors)
+
+
+def check_mesh_bound(case: Case, conductors: list[Conductor]) -> None:
+    """Refuse a case whose mesh would be far too large to solve (CaseError naming the keys that set it)."""
+    edges = surface_edges(conductors, case_sizing(case, conductors))
+    if edges > MAX_SURFACE_EDGES:
+        source = ("mesh.frequency" if case.mesh.frequency is not None else
+                  "waveform.max_harmonic" if case.waveform is not None else "sweep")
+        raise CaseError(source, f"the mesh at {case.mesh_frequency:.4g} Hz (skin depth "
+                        f"{case_sizing(case, conductors).skin_depth * 1e6:.3g} um) would put about {edges:.3g} element "
+                        f"edges on the conductor surfaces, more than the {MAX_SURFACE_EDGES} this machine class can solve",
+                        "lower the highest frequency or set [mesh] frequency lower, or a [mesh] density below 1")

@@ -207,19 +207,81 @@ def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
                          case.window.inner_radius if case.model.axisymmetric else None, strands)
 
 
-def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
-              method: str = "auto", done: dict[int, PointResult] | None = None,
-              on_point: Callable[[int, PointResult, Callable[[], "SweepResult"]], None] | None = None
-              ) -> SweepResult:
-    """Place, mesh, assemble once and solve every frequency of ``case``.
+@dataclass
+class _Points:
+    """The per-frequency arrays of a sweep, filled point by point (see
+    :class:`SweepResult`; ``residual`` the backward error of each point's full
+    solve, NaN for none; ``finished`` which points hold a result)."""
 
-    ``method``: "auto" (reduced model for long sweeps without litz bundles),
-    "reduced" or "exact" (one factorization per frequency).  ``done``: points
-    already solved (by index, e.g. from an interrupted run), taken as they
-    are; the last frequency is solved again all the same, for its field.
-    ``on_point(index, point, partial)`` is called after every newly solved
-    point; ``partial()`` gives the sweep of the points solved so far."""
-    timings = {}
+    basis_currents: np.ndarray
+    loss: np.ndarray
+    impedance: np.ndarray
+    inductance: np.ndarray
+    loss_matrix: np.ndarray
+    residual: np.ndarray
+    finished: np.ndarray
+
+    @classmethod
+    def empty(cls, nf: int, nc: int, nw: int) -> "_Points":
+        """Zeros for ``nf`` frequencies, ``nc`` conductors, ``nw`` excitation columns."""
+        return cls(np.zeros((nf, nw), dtype=complex), np.zeros((nf, nc)), np.zeros((nf, nc, nc), dtype=complex),
+                   np.zeros((nf, nc, nc)), np.zeros((nf, nc, nw, nw), dtype=complex), np.full(nf, math.nan),
+                   np.zeros(nf, dtype=bool))
+
+    def store(self, i: int, point: PointResult) -> None:
+        """Keep ``point`` as frequency ``i``."""
+        self.basis_currents[i], self.loss[i] = point.basis_currents, point.loss_per_m
+        self.impedance[i], self.inductance[i] = point.impedance_per_m, point.inductance_per_m
+        self.loss_matrix[i] = point.loss_matrix_per_m
+        self.residual[i] = float(point.residual)
+        self.finished[i] = True
+
+
+@dataclass
+class _Sweep:
+    """A sweep in progress: the placed, meshed and assembled case, its
+    excitation, and the points solved so far.  ``currents`` (Nc,) A RMS the
+    nominal conductor currents, ``rdc`` (Nc,) ohm/m (see :class:`SweepResult`)."""
+
+    case: Case
+    conductors: list[Conductor]
+    rho: np.ndarray
+    window_mesh: WindowMesh
+    problem: WindowProblem
+    excitation: Excitation
+    winding_currents: np.ndarray
+    currents: np.ndarray
+    rdc: np.ndarray
+    freqs: np.ndarray
+    points: _Points
+    timings: dict
+    sweep_info: dict
+    snapshot: FieldSnapshot | None = None
+
+    @property
+    def connection(self) -> np.ndarray:
+        """The excitation basis (Nc, Ne)."""
+        return self.excitation.basis
+
+    def share(self, z_basis: np.ndarray) -> np.ndarray:
+        """Column currents (Ne,) A of the case's winding currents for the column impedances ``z_basis``."""
+        return sharing(z_basis, self.excitation.windings) @ self.winding_currents
+
+    def result(self, index: np.ndarray | slice = slice(None), warnings: list | None = None) -> SweepResult:
+        """The sweep of the frequencies ``index`` (all by default)."""
+        p, mesh = self.points, self.window_mesh
+        true_area = np.array([c.area for c in self.conductors])
+        return SweepResult(self.freqs[index], self.conductors, self.rho, self.currents, self.rdc, p.loss[index],
+                           p.impedance[index], self.problem.areas / true_area - 1.0, p.inductance[index],
+                           p.loss_matrix[index], [w.name for w in self.case.windings], self.connection,
+                           self.problem.unknowns, mesh.elements, mesh.surface_size, self.timings, self.snapshot,
+                           self.excitation, p.basis_currents[index], self.sweep_info, warnings or [])
+
+
+def _assemble(case: Case, timings: dict) -> tuple[list[Conductor], np.ndarray, WindowMesh, WindowProblem]:
+    """Place, mesh and assemble ``case`` (conductors, resistivities ohm*m, mesh,
+    problem), with the fill-reducing ordering every factorization shares;
+    records mesh_s, assembly_s and ordering_s in ``timings``."""
     start = time.perf_counter()
     conductors = place(case)
     rho = conductor_resistivities(case, conductors)
@@ -234,111 +296,150 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     if not problem.stranded.any():
         problem.bordered
     timings["ordering_s"] = time.perf_counter() - start
+    return conductors, rho, window_mesh, problem
 
-    names = [w.name for w in case.windings]
+
+def _setup(case: Case) -> _Sweep:
+    """The assembled sweep of ``case`` with no point solved yet."""
+    timings: dict = {}
+    conductors, rho, window_mesh, problem = _assemble(case, timings)
     excitation = excitation_basis(case, conductors)
-    connection = excitation.basis
     winding_currents = np.array([w.phasor for w in case.windings], dtype=complex)
-
-    def share(z_basis: np.ndarray) -> np.ndarray:
-        return sharing(z_basis, excitation.windings) @ winding_currents
-
     # nominal conductor currents: equal shares among parallel conductors
     currents = excitation.membership @ (winding_currents / np.maximum(
         excitation.membership.sum(axis=0) / np.maximum(excitation.turns, 1), 1))
-    true_area = np.array([c.area for c in conductors])
-    freqs = np.array(case.frequencies)
-    nf, nc, nw = len(freqs), len(conductors), connection.shape[1]
-    loss = np.zeros((nf, nc))
-    basis_currents = np.zeros((nf, nw), dtype=complex)
-    impedance = np.zeros((nf, nc, nc), dtype=complex)
-    inductance = np.zeros((nf, nc, nc))
-    loss_matrix = np.zeros((nf, nc, nw, nw), dtype=complex)
-    snapshot = None
-    done = dict(done or {})
-    finished = np.zeros(nf, dtype=bool)
-    residual = np.full(nf, math.nan)
-
-    def store(i: int, point: PointResult) -> None:
-        basis_currents[i], loss[i] = point.basis_currents, point.loss_per_m
-        impedance[i], inductance[i] = point.impedance_per_m, point.inductance_per_m
-        loss_matrix[i] = point.loss_matrix_per_m
-        residual[i] = float(point.residual)
-        finished[i] = True
-
-    for i, point in done.items():
-        store(i, point)
-    start = time.perf_counter()
-    model = None
-    sweep_info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
-    residuals = []   # (Hz, backward error or None) of the solves, for the guards
-    if use_reduced(case, conductors, method):
-        model, chosen, change = reduced_plan(problem, freqs, connection)
-        sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
-                      "max_check_deviation": None, "reduced_size": model.size}
-        timings["reduced_build_s"] = time.perf_counter() - start
     offset = case.window.inner_radius if case.model.axisymmetric else None
     rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
+    freqs = np.array(case.frequencies)
+    points = _Points.empty(len(freqs), len(conductors), excitation.basis.shape[1])
+    info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
+    return _Sweep(case, conductors, rho, window_mesh, problem, excitation, winding_currents, currents, rdc,
+                  freqs, points, timings, info)
 
-    def result(index: np.ndarray | slice = slice(None), warnings: list | None = None) -> SweepResult:
-        return SweepResult(freqs[index], conductors, rho, currents, rdc, loss[index], impedance[index],
-                           problem.areas / true_area - 1.0, inductance[index], loss_matrix[index], names,
-                           connection, problem.unknowns, window_mesh.elements, window_mesh.surface_size,
-                           timings, snapshot, excitation, basis_currents[index], sweep_info, warnings or [])
 
-    points_start = time.perf_counter()
-    for i, f in enumerate(freqs):
+def _plan(sweep: _Sweep, method: str, start: float):
+    """The reduced model of ``sweep`` when ``method`` calls for one (see
+    :func:`use_reduced`): (model, expansion indices, estimated change), or
+    (None, [], None) for a point-by-point sweep.  ``start``: perf_counter of
+    the solve phase, for the timing reduced_build_s."""
+    if not use_reduced(sweep.case, sweep.conductors, method):
+        return None, [], None
+    model, chosen, change = reduced_plan(sweep.problem, sweep.freqs, sweep.connection)
+    sweep.sweep_info = {"method": "reduced", "expansion_hz": [float(sweep.freqs[i]) for i in sorted(chosen)],
+                        "max_check_deviation": None, "reduced_size": model.size}
+    sweep.timings["reduced_build_s"] = time.perf_counter() - start
+    return model, chosen, change
+
+
+def _snapshot(sweep: _Sweep, f: float, solution) -> FieldSnapshot:
+    """The field of ``solution`` (solved at ``f`` Hz with its field kept), with
+    the MMF profile of a closed window."""
+    case, problem = sweep.case, sweep.problem
+    column_currents = sweep.connection @ solution.currents
+    mmf = None
+    if case.window.boundary != "open":
+        mmf = mmf_profile(problem, solution.potential, sweep.conductors, column_currents, case.window.width,
+                          case.window.height, case.window.stacking == "across-width",
+                          case.core.relative_permeability if case.core else 1.0)
+    return FieldSnapshot(f, problem.basis.doflocs, problem.basis.element_dofs, sweep.window_mesh.region,
+                         solution.potential,
+                         problem.current_density(f, solution.voltage_per_m, solution.potential, column_currents),
+                         mmf)
+
+
+def _solve_point(sweep: _Sweep, i: int, model, keep_field: bool) -> PointResult:
+    """Solve frequency ``i`` (full solve, or from the reduced ``model``) and
+    store it; ``keep_field``: also keep its field as the sweep's snapshot."""
+    f = sweep.freqs[i]
+    response = model.respond(2.0 * np.pi * f) if model is not None else None
+    solution = sweep.problem.solve_windings(f, sweep.connection, sweep.share, keep_field=keep_field,
+                                            response=response)
+    point = PointResult(solution.currents, solution.loss_per_m, solution.impedance_per_m,
+                        solution.inductance_per_m, solution.loss_matrix_per_m,
+                        math.nan if solution.residual is None else float(solution.residual))
+    sweep.points.store(i, point)
+    if keep_field:
+        sweep.snapshot = _snapshot(sweep, f, solution)
+    return point
+
+
+def _solve_points(sweep: _Sweep, model, done: dict[int, PointResult], progress, on_point) -> None:
+    """Solve every frequency not in ``done`` in order, and the last one always
+    (for its field); ``on_point`` after each newly solved point, ``progress``
+    after every frequency (see :func:`run_sweep`)."""
+    nf = len(sweep.freqs)
+    for i, f in enumerate(sweep.freqs):
         last = i == nf - 1
-        if finished[i] and not last:
-            if progress:
-                progress(i + 1, nf, f)
-            continue
-        response = model.respond(2.0 * np.pi * f) if model is not None else None
-        solution = problem.solve_windings(f, connection, share, keep_field=last, response=response)
-        point = PointResult(solution.currents, solution.loss_per_m, solution.impedance_per_m,
-                            solution.inductance_per_m, solution.loss_matrix_per_m,
-                            math.nan if solution.residual is None else float(solution.residual))
-        store(i, point)
-        if last:
-            mmf = None
-            if case.window.boundary != "open":
-                mmf = mmf_profile(problem, solution.potential, conductors, connection @ solution.currents,
-                                  case.window.width,
-                                  case.window.height, case.window.stacking == "across-width",
-                                  case.core.relative_permeability if case.core else 1.0)
-            snapshot = FieldSnapshot(
-                f, problem.basis.doflocs, problem.basis.element_dofs, window_mesh.region, solution.potential,
-                problem.current_density(f, solution.voltage_per_m, solution.potential,
-                                         connection @ solution.currents), mmf)
-        if on_point and i not in done:
-            on_point(i, point, lambda: result(np.nonzero(finished)[0]))
+        if last or not sweep.points.finished[i]:
+            point = _solve_point(sweep, i, model, keep_field=last)
+            if on_point and i not in done:
+                on_point(i, point, lambda: sweep.result(np.nonzero(sweep.points.finished)[0]))
         if progress:
             progress(i + 1, nf, f)
+
+
+def _check_deviation(sweep: _Sweep, i: int, full, deviation: float) -> float:
+    """``deviation`` raised to the relative deviation of the reduced point
+    ``i`` from its full solve ``full``: winding losses and column resistances."""
+    members, connection = sweep.excitation.membership, sweep.connection
+    exact_w = members.T @ full.loss_per_m
+    reduced_w = members.T @ sweep.points.loss[i]
+    ok = np.abs(exact_w) > 0
+    if ok.any():
+        deviation = max(deviation, float(np.max(np.abs(reduced_w[ok] / exact_w[ok] - 1.0))))
+    # column resistances (the conductor matrix of a reduced model is
+    # exact only for currents the excitation columns can carry)
+    rz_full = np.diag(connection.T @ full.impedance_per_m @ connection).real
+    rz_red = np.diag(connection.T @ sweep.points.impedance[i] @ connection).real
+    return max(deviation, float(np.max(np.abs(rz_red / rz_full - 1.0))))
+
+
+def _self_check(sweep: _Sweep, chosen: list[int], change: np.ndarray) -> list[tuple[float, float | None]]:
+    """Full solves at the two non-expansion frequencies of largest estimated
+    ``change``; records their deviation in the sweep info and returns their
+    (Hz, backward error) for the guards."""
+    check_start = time.perf_counter()
+    order = [int(i) for i in np.argsort(-change) if int(i) not in chosen][:2]
+    residuals = []
+    deviation = 0.0
+    for i in order:
+        full = sweep.problem.solve_windings(sweep.freqs[i], sweep.connection, sweep.share)
+        residuals.append((sweep.freqs[i], full.residual))
+        deviation = _check_deviation(sweep, i, full, deviation)
+    sweep.sweep_info["check_hz"] = [float(sweep.freqs[i]) for i in order]
+    sweep.sweep_info["max_check_deviation"] = deviation
+    sweep.timings["reduced_check_s"] = time.perf_counter() - check_start
+    return residuals
+
+
+def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
+              method: str = "auto", done: dict[int, PointResult] | None = None,
+              on_point: Callable[[int, PointResult, Callable[[], "SweepResult"]], None] | None = None
+              ) -> SweepResult:
+    """Place, mesh, assemble once and solve every frequency of ``case``.
+
+    ``method``: "auto" (reduced model for long sweeps without litz bundles),
+    "reduced" or "exact" (one factorization per frequency).  ``done``: points
+    already solved (by index, e.g. from an interrupted run), taken as they
+    are; the last frequency is solved again all the same, for its field.
+    ``on_point(index, point, partial)`` is called after every newly solved
+    point; ``partial()`` gives the sweep of the points solved so far."""
+    sweep = _setup(case)
+    done = dict(done or {})
+    for i, point in done.items():
+        sweep.points.store(i, point)
+    start = time.perf_counter()
+    model, chosen, change = _plan(sweep, method, start)
+    points_start = time.perf_counter()
+    _solve_points(sweep, model, done, progress, on_point)
+    residuals = []   # (Hz, backward error or None) of the solves, for the guards
     if model is not None:
-        timings["reduced_points_s"] = time.perf_counter() - points_start
-        # self-check: full solves at the two non-expansion frequencies of largest estimated change
-        check_start = time.perf_counter()
-        order = [int(i) for i in np.argsort(-change) if int(i) not in chosen][:2]
-        members = excitation.membership
-        deviation = 0.0
-        for i in order:
-            full = problem.solve_windings(freqs[i], connection, share)
-            residuals.append((freqs[i], full.residual))
-            exact_w = members.T @ full.loss_per_m
-            reduced_w = members.T @ loss[i]
-            ok = np.abs(exact_w) > 0
-            if ok.any():
-                deviation = max(deviation, float(np.max(np.abs(reduced_w[ok] / exact_w[ok] - 1.0))))
-            # column resistances (the conductor matrix of a reduced model is
-            # exact only for currents the excitation columns can carry)
-            rz_full = np.diag(connection.T @ full.impedance_per_m @ connection).real
-            rz_red = np.diag(connection.T @ impedance[i] @ connection).real
-            deviation = max(deviation, float(np.max(np.abs(rz_red / rz_full - 1.0))))
-        sweep_info["check_hz"] = [float(freqs[i]) for i in order]
-        sweep_info["max_check_deviation"] = deviation
-        timings["reduced_check_s"] = time.perf_counter() - check_start
-    timings["solve_s"] = time.perf_counter() - start
+        sweep.timings["reduced_points_s"] = time.perf_counter() - points_start
+        residuals = _self_check(sweep, chosen, change)
+    sweep.timings["solve_s"] = time.perf_counter() - start
     # the points' residuals (restored points keep theirs) before the self-check's
-    residuals[:0] = [(float(f), None if math.isnan(r) else float(r)) for f, r in zip(freqs, residual)]
-    warnings = sweep_warnings(case, conductors, rho, window_mesh, freqs, residuals, sweep_info)
-    return result(warnings=warnings)
+    residuals[:0] = [(float(f), None if math.isnan(r) else float(r))
+                     for f, r in zip(sweep.freqs, sweep.points.residual)]
+    warnings = sweep_warnings(case, sweep.conductors, sweep.rho, sweep.window_mesh, sweep.freqs, residuals,
+                              sweep.sweep_info)
+    return sweep.result(warnings=warnings)

@@ -10,9 +10,10 @@ other direction.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
-from .case import Case, CaseError, ConductorSpec, parallel_of, strands_per_turn
+from .case import Case, CaseError, ConductorSpec, Layer, Window, parallel_of, strands_per_turn
+from .case.model import SECTIONS, section_area
 
 _TOL = 1e-12  # m; touching is allowed, overlapping is not
 #: the most conductors (turns, parallel conductors, litz strands) one arrangement may place:
@@ -27,7 +28,7 @@ class Conductor:
     index: int          #: 0-based position in the case's conductor list
     winding: str
     turn: int           #: 1-based turn number within the winding
-    shape: str          #: "round" or "rect" (rectangular and foil both mesh as rectangles)
+    shape: str          #: its section, "round" or "rect" (the case shape's, see SECTIONS)
     x: float            #: centre
     y: float            #: centre
     width: float        #: bare size along x (the diameter for round)
@@ -40,16 +41,12 @@ class Conductor:
     @property
     def area(self) -> float:
         """True cross-section of the region in m^2 (a litz bundle: the whole bundle circle)."""
-        if self.shape == "round":
-            return math.pi * self.width ** 2 / 4.0
-        return self.width * self.height
+        return section_area(self.shape, self.width, self.height)
 
     @property
     def copper_area(self) -> float:
         """True conducting cross-section in m^2 (a litz bundle: its strands' copper)."""
-        if self.strands:
-            return self.strands * math.pi * self.strand_diameter ** 2 / 4.0
-        return self.area
+        return section_area(self.shape, self.width, self.height, self.strands, self.strand_diameter)
 
     @property
     def radius(self) -> float:
@@ -67,85 +64,124 @@ def _mm(value: float) -> str:
     return f"{value * 1e3:.4g} mm"
 
 
-def place(case: Case) -> list[Conductor]:
-    """All conductors of ``case`` with positions; raises CaseError on a bad layout."""
-    win = case.window
+@dataclass(frozen=True)
+class _Span:
+    """Where layers go, in m: ``stack_lo``..``stack_hi`` along the direction
+    the layers follow one another (``direction``, "width" or "height"),
+    ``along_lo``..``along_hi`` along each layer, both between the margins."""
+
+    across_width: bool
+    stack_lo: float
+    stack_hi: float
+    along_lo: float
+    along_hi: float
+    direction: str
+
+
+def _span(win: Window) -> _Span:
+    """The window's free span between the margins, in layer axes."""
     across_width = win.stacking == "across-width"
-    # (lo, hi) along the layers' stacking direction and along each layer
-    stack_lo, stack_hi = ((win.margin_inner, win.width - win.margin_outer) if across_width
-                          else (win.margin_bottom, win.height - win.margin_top))
-    along_lo, along_hi = ((win.margin_bottom, win.height - win.margin_top) if across_width
-                          else (win.margin_inner, win.width - win.margin_outer))
-    direction = "width" if across_width else "height"
+    along_width = (win.margin_inner, win.width - win.margin_outer)
+    along_height = (win.margin_bottom, win.height - win.margin_top)
+    stack, along = (along_width, along_height) if across_width else (along_height, along_width)
+    return _Span(across_width, *stack, *along, "width" if across_width else "height")
 
-    _check_count(case)
-    turn_count: dict[str, int] = {}
-    placed: list[Conductor] = []
 
-    def add_one(winding: str, shape: str, x: float, y: float, w: float, h: float, key: str,
+@dataclass
+class _Placement:
+    """The conductors of ``case`` placed so far, in case order."""
+
+    case: Case
+    placed: list[Conductor] = field(default_factory=list)
+    counts: dict[str, int] = field(default_factory=dict)   #: conductors of each winding so far
+
+    def add_one(self, winding: str, shape: str, x: float, y: float, w: float, h: float, key: str,
                 strands: int = 0, strand_diameter: float = 0.0) -> None:
+        """One conductor region of case ``shape`` centred at (x, y), bare size w x h (m)."""
         # the winding's conductors in order, taken `parallel` at a time, make its turns
-        seen = turn_count.get(winding, 0)
-        turn_count[winding] = seen + 1
-        per_turn = parallel_of(case, winding).conductors
-        placed.append(Conductor(len(placed), winding, seen // per_turn + 1,
-                                "round" if shape in ("round", "litz") else "rect", x, y, w, h, key,
-                                seen % per_turn + 1, strands, strand_diameter))
+        seen = self.counts.get(winding, 0)
+        self.counts[winding] = seen + 1
+        per_turn = parallel_of(self.case, winding).conductors
+        self.placed.append(Conductor(len(self.placed), winding, seen // per_turn + 1, SECTIONS[shape],
+                                     x, y, w, h, key, seen % per_turn + 1, strands, strand_diameter))
 
-    def add(winding: str, spec: ConductorSpec, x: float, y: float, w: float, h: float, key: str) -> None:
+    def add(self, winding: str, spec: ConductorSpec, x: float, y: float, w: float, h: float, key: str) -> None:
+        """One turn of ``spec`` centred at (x, y): a litz turn meshed strand by
+        strand adds every strand, a homogenized one a single bundle."""
         if spec.shape != "litz":
-            add_one(winding, spec.shape, x, y, w, h, key)
+            self.add_one(winding, spec.shape, x, y, w, h, key)
         elif spec.representation == "bundle":
-            add_one(winding, "litz", x, y, w, h, key, spec.strands, spec.strand_diameter)
+            self.add_one(winding, "litz", x, y, w, h, key, spec.strands, spec.strand_diameter)
         else:
             d = spec.strand_diameter
             for sx, sy in strand_positions(spec.strands, d, w, key):
-                add_one(winding, "round", x + sx, y + sy, d, d, key)
+                self.add_one(winding, "round", x + sx, y + sy, d, d, key)
 
-    position = stack_lo
+
+def place(case: Case) -> list[Conductor]:
+    """All conductors of ``case`` with positions; raises CaseError on a bad layout."""
+    span = _span(case.window)
+    _check_count(case)
+    placement = _Placement(case)
+    position = span.stack_lo
     for layer in case.layers:
-        bw, bh, ow, oh = _oriented(layer.conductor, win.stacking)
-        thickness, pitch = (ow, oh) if across_width else (oh, ow)
-        avail = along_hi - along_lo
-        need = layer.turns * pitch
-        if need > avail * (1 + 1e-9) + _TOL:
-            raise CaseError(f"{layer.key}.turns",
-                            f"{layer.turns} turns at a pitch of {_mm(pitch)} need {_mm(need)} "
-                            f"but the window gives {_mm(avail)} between the margins",
-                            "use fewer turns per layer, a smaller conductor or smaller margins")
-        for _ in range(layer.repeat):
-            if position + thickness > stack_hi * (1 + 1e-9) + _TOL:
-                raise CaseError(f"{layer.key}",
-                                f"the layers need {_mm(position + thickness - stack_lo)} across the window {direction} "
-                                f"but {_mm(stack_hi - stack_lo)} is free between the margins",
-                                "use fewer or thinner layers, less insulation_after, or a larger window")
-            centre_stack = position + 0.5 * thickness
-            if layer.align == "spread":
-                step, start = avail / layer.turns, along_lo
-            elif layer.align == "start":
-                step, start = pitch, along_lo
-            elif layer.align == "end":
-                step, start = pitch, along_hi - need
-            else:
-                step, start = pitch, along_lo + 0.5 * (avail - need)
-            for i in range(layer.turns):
-                along = start + (i + 0.5) * step
-                x, y = (centre_stack, along) if across_width else (along, centre_stack)
-                add(layer.winding, layer.conductor, x, y, bw, bh, layer.key)
-            position += thickness + layer.insulation_after
-
+        position = _place_layer(placement, layer, span, position)
     for item in case.conductors:
         bw, bh, _, _ = _oriented(item.conductor, "across-width")
-        add(item.winding, item.conductor, item.at[0], item.at[1], bw, bh, item.key)
+        placement.add(item.winding, item.conductor, item.at[0], item.at[1], bw, bh, item.key)
+    _check_inside(placement.placed, case.window)
+    _check_overlaps(placement.placed)
+    return placement.placed
 
+
+def _turn_steps(layer: Layer, span: _Span, pitch: float) -> tuple[float, float]:
+    """(step, start) in m along the layer: turn i is centred at start + (i + 1/2) step.
+    Raises CaseError when the turns do not fit between the margins."""
+    avail = span.along_hi - span.along_lo
+    need = layer.turns * pitch
+    if need > avail * (1 + 1e-9) + _TOL:
+        raise CaseError(f"{layer.key}.turns",
+                        f"{layer.turns} turns at a pitch of {_mm(pitch)} need {_mm(need)} "
+                        f"but the window gives {_mm(avail)} between the margins",
+                        "use fewer turns per layer, a smaller conductor or smaller margins")
+    if layer.align == "spread":
+        return avail / layer.turns, span.along_lo
+    if layer.align == "start":
+        return pitch, span.along_lo
+    if layer.align == "end":
+        return pitch, span.along_hi - need
+    return pitch, span.along_lo + 0.5 * (avail - need)
+
+
+def _place_layer(placement: _Placement, layer: Layer, span: _Span, position: float) -> float:
+    """Place the ``repeat`` layers of ``layer`` from ``position`` (m, along the
+    stacking direction) on; returns the position after them."""
+    bw, bh, ow, oh = _oriented(layer.conductor, placement.case.window.stacking)
+    thickness, pitch = (ow, oh) if span.across_width else (oh, ow)
+    step, start = _turn_steps(layer, span, pitch)
+    for _ in range(layer.repeat):
+        if position + thickness > span.stack_hi * (1 + 1e-9) + _TOL:
+            raise CaseError(f"{layer.key}",
+                            f"the layers need {_mm(position + thickness - span.stack_lo)} across the window "
+                            f"{span.direction} but {_mm(span.stack_hi - span.stack_lo)} is free between the margins",
+                            "use fewer or thinner layers, less insulation_after, or a larger window")
+        centre_stack = position + 0.5 * thickness
+        for i in range(layer.turns):
+            along = start + (i + 0.5) * step
+            x, y = (centre_stack, along) if span.across_width else (along, centre_stack)
+            placement.add(layer.winding, layer.conductor, x, y, bw, bh, layer.key)
+        position += thickness + layer.insulation_after
+    return position
+
+
+def _check_inside(placed: list[Conductor], win: Window) -> None:
+    """Refuse the first conductor that reaches outside the window."""
     for c in placed:
         if (c.x - c.width / 2 < -_TOL or c.x + c.width / 2 > win.width + _TOL
                 or c.y - c.height / 2 < -_TOL or c.y + c.height / 2 > win.height + _TOL):
             raise CaseError(c.key, f"{c.winding} turn {c.turn} at ({_mm(c.x)}, {_mm(c.y)}) "
                             f"reaches outside the {_mm(win.width)} x {_mm(win.height)} window",
                             "move it inside the window (coordinates from the inner-bottom corner)")
-    _check_overlaps(placed)
-    return placed
 
 
 def _check_count(case: Case) -> None:

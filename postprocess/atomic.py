@@ -30,8 +30,3 @@ def _umask() -> int:
     mask = os.umask(0)
     os.umask(mask)
     return mask
-
-
-def temporary_sibling(path: Path) -> Path:
-    """A temporary name beside ``path`` for writers that need a file name."""
-    return path.with_name(f".{path.stem}.tmp{path.suffix}")

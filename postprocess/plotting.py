@@ -2,14 +2,14 @@
 
 from __future__ import annotations
 
-import os
+import io
 from pathlib import Path
 
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
-from .atomic import temporary_sibling
+from .atomic import replace_bytes
 
 LINE_MAP = "viridis"   # perceptually uniform; line colours are sampled from it
 FIELD_MAP = "magma"    # perceptually uniform; |J| maps
@@ -25,11 +25,16 @@ def line_colours(count: int, cmap) -> list:
     return [cmap(x) for x in np.linspace(0.12, 0.78, max(count, 1))]
 
 
+def render(figure: Figure, file_format: str = "png") -> bytes:
+    """The figure as the bytes of a ``file_format`` file (png, svg, pdf ...)."""
+    buffer = io.BytesIO()
+    figure.savefig(buffer, format=file_format)
+    return buffer.getvalue()
+
+
 def save(figure: Figure, path: Path) -> Path:
-    tmp = temporary_sibling(path)
-    figure.savefig(tmp, format=path.suffix.lstrip("."))
-    os.replace(tmp, path)
-    return path
+    """Write ``figure`` to ``path`` (format from the suffix) whole or not at all."""
+    return replace_bytes(path, render(figure, path.suffix.lstrip(".")))
 
 
 def linear_subtriangles(triangles: np.ndarray) -> np.ndarray:

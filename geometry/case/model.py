@@ -79,6 +79,24 @@ class Winding:
         return self.current * cmath.exp(1j * math.radians(self.phase_deg))
 
 
+#: the cross-section every conductor shape is placed and meshed as: a circle
+#: ("round"; litz: the bundle) or a rectangle ("rect"; a foil is a rectangle)
+SECTIONS = {"round": "round", "rectangular": "rect", "foil": "rect", "litz": "round"}
+
+
+def section_area(section: str, width: float, height: float, strands: int = 0,
+                 strand_diameter: float = 0.0) -> float:
+    """True cross-section in m^2 of a ``section`` (see SECTIONS): "round" of
+    diameter ``width``, pi d^2 / 4, or "rect" ``width`` x ``height``; with
+    ``strands`` > 0 the copper of that many strands of diameter
+    ``strand_diameter`` instead (a litz bundle's conducting area)."""
+    if strands:
+        return strands * math.pi * strand_diameter ** 2 / 4.0
+    if section == "round":
+        return math.pi * width ** 2 / 4.0
+    return width * height
+
+
 @dataclass(frozen=True)
 class ConductorSpec:
     """A conductor cross-section.  Sizes in m.
@@ -103,11 +121,8 @@ class ConductorSpec:
     @property
     def area(self) -> float:
         """True conducting cross-section in m^2 (litz: the copper of all strands)."""
-        if self.shape == "litz":
-            return self.strands * math.pi * self.strand_diameter ** 2 / 4.0
-        if self.shape == "round":
-            return math.pi * self.width ** 2 / 4.0
-        return self.width * self.height
+        return section_area(SECTIONS[self.shape], self.width, self.height,
+                            self.strands if self.shape == "litz" else 0, self.strand_diameter)
 
 
 @dataclass(frozen=True)

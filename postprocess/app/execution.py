@@ -1,5 +1,6 @@
-"""Running the variants of a case: in this process, in a local pool of worker
-processes, or on an existing Dask distributed cluster.
+"""Running the variants of a case in a local pool of worker processes or on an
+existing Dask distributed cluster (the command line runs them one after the
+other in its own process itself, see :func:`racfield.cli.command_run`).
 
 Every variant is an independent job: its :class:`~geometry.case.Case` goes to
 a worker, the worker runs the sweep (BLAS limited to one thread, so that
@@ -39,7 +40,7 @@ class Job:
 @dataclass
 class Outcome:
     """A finished job: the sweep and its result files (name -> bytes, rendered
-    by the worker; None when run here), or the error line of a failed variant."""
+    by the worker), or (None) the error line of a refused or failed variant."""
 
     key: str
     sweep: SweepResult | None
@@ -116,12 +117,11 @@ class Progress:
 def run_jobs(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
              finished: Callable[[Outcome], None], quiet: bool = False, check_mesh: bool = False) -> list[Outcome]:
     """Run ``jobs`` and call ``finished`` with each outcome as it arrives (in
-    this process).  ``workers`` 1 and no ``cluster``: one after the other here;
-    otherwise a local pool of ``workers`` processes, or the Dask scheduler at
-    ``cluster`` (an address such as tcp://10.0.0.5:8786)."""
+    this process): on a local pool of ``workers`` processes, or on the Dask
+    scheduler at ``cluster`` (an address such as tcp://10.0.0.5:8786)."""
     ready = [Outcome(j.key, None, j.error) for j in jobs if j.case is None]
     runnable = [j for j in jobs if j.case is not None]
-    progress = Progress(len(jobs), 1 if cluster is None and workers <= 1 else max(workers, 1), quiet=quiet)
+    progress = Progress(len(jobs), max(workers, 1), quiet=quiet)
     outcomes: list[Outcome] = []
 
     def deliver(outcome: Outcome) -> None:
@@ -133,11 +133,6 @@ def run_jobs(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
     for outcome in ready:
         deliver(outcome)
     if not runnable:
-        return outcomes
-    if cluster is None and workers <= 1:
-        for job in runnable:
-            sweep, _, _, error = solve_job(job.case, exact)
-            deliver(Outcome(job.key, sweep, error))
         return outcomes
     for outcome in _distributed(runnable, exact, workers, cluster, progress, check_mesh):
         deliver(outcome)

@@ -7,13 +7,14 @@ the real/imaginary parts of J; cell data: region (conductor index, -1 air).
 from __future__ import annotations
 
 import os
+import tempfile
 from pathlib import Path
 
 import meshio
 import numpy as np
 
 from ..report import Report
-from ..atomic import temporary_sibling
+from ..atomic import replace_bytes
 
 
 def write(report: Report, directory: Path) -> list[Path]:
@@ -28,8 +29,16 @@ def write(report: Report, directory: Path) -> list[Path]:
                     "J_re_A_per_m2": snap.current_density.real, "J_im_A_per_m2": snap.current_density.imag},
         cell_data={"region": [snap.region.astype(np.int32)]},
     )
-    target = directory / "field.vtu"
-    tmp = temporary_sibling(target)
-    meshio.write(tmp, mesh, file_format="vtu")
-    os.replace(tmp, target)
-    return [target]
+    return [replace_bytes(directory / "field.vtu", vtu_bytes(mesh, directory))]
+
+
+def vtu_bytes(mesh: meshio.Mesh, folder: Path) -> bytes:
+    """``mesh`` as the bytes of a VTU file.  meshio writes VTU only to a named
+    file: a private temporary file in ``folder`` (unique name), removed again."""
+    fd, name = tempfile.mkstemp(dir=folder, prefix=".field.vtu.", suffix=".tmp")
+    os.close(fd)
+    try:
+        meshio.write(name, mesh, file_format="vtu")
+        return Path(name).read_bytes()
+    finally:
+        Path(name).unlink(missing_ok=True)

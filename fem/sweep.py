@@ -13,8 +13,9 @@ import numpy as np
 
 from racfield.geometry.case import Case
 from racfield.geometry.layout import Conductor, dc_resistance, place
-from racfield.geometry.materials import material, skin_depth
-from racfield.geometry.mesher import MeshSizing, WindowMesh, build_mesh
+from racfield.geometry.materials import material
+from racfield.geometry.mesher import WindowMesh, build_mesh
+from racfield.geometry.sizing import case_sizing
 
 from .guards import sweep_warnings
 from .mmf import MmfProfile, mmf_profile
@@ -187,11 +188,8 @@ def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarr
 def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
     """The window mesh, sized from the smallest skin depth at the mesh frequency
     (``[mesh] frequency``, else the highest frequency of the case)."""
-    rho = conductor_resistivities(case, conductors)
-    delta = skin_depth(float(rho.min()), case.mesh_frequency)
-    sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
-                      sizing, case.mesh.far_radius_factor, case.core,
+                      case_sizing(case, conductors), case.mesh.far_radius_factor, case.core,
                       axis_x=-case.window.inner_radius if case.model.axisymmetric else None)
 
 

@@ -172,7 +172,8 @@ def test_control_characters_in_a_key_are_escaped_in_the_message(tmp_path, capsys
 
 
 @pytest.mark.parametrize("field, size, key", [("name", 200_000, "winding[1].name"),
-                                              ("title", 10_000_000, "title")])
+                                              ("title", 3_000_000, "title"),
+                                              ("title", 10_000_000, "MiB limit")])
 def test_a_huge_name_or_title_is_refused_at_once(tmp_path, capsys, field, size, key):
     text = case_text(**{field: '"' + "x" * size + '"'})
     line = run_in(tmp_path, text, "check", capsys, key)

@@ -12,8 +12,9 @@ from typing import Callable
 import numpy as np
 
 from racfield.geometry.case import Case
-from racfield.geometry.layout import Conductor, dc_resistance, place
-from racfield.geometry.materials import material, skin_depth
+from racfield.geometry.layout import Conductor, place
+from racfield.geometry.materials import skin_depth
+from racfield.geometry import resistance
 from racfield.geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
 from .guards import sweep_warnings
@@ -180,8 +181,7 @@ def use_reduced(case: Case, conductors: list[Conductor], method: str = "auto") -
 
 def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarray:
     """Resistivity (ohm*m) of every conductor at the case temperature."""
-    return np.array([material(case.winding(c.winding).material).resistivity(case.model.temperature_c)
-                     for c in conductors])
+    return np.array(resistance.conductor_resistivities(case, conductors))
 
 
 def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
@@ -277,8 +277,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
                       "max_check_deviation": None, "reduced_size": model.size}
         timings["reduced_build_s"] = time.perf_counter() - start
-    offset = case.window.inner_radius if case.model.axisymmetric else None
-    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
+    rdc = np.array(resistance.conductor_resistances(case, conductors))
 
     def result(index: np.ndarray | slice = slice(None), warnings: list | None = None) -> SweepResult:
         return SweepResult(freqs[index], conductors, rho, currents, rdc, loss[index], impedance[index],

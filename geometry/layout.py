@@ -144,6 +144,12 @@ def place(case: Case) -> list[Conductor]:
             raise CaseError(c.key, f"{c.winding} turn {c.turn} at ({_mm(c.x)}, {_mm(c.y)}) "
                             f"reaches outside the {_mm(win.width)} x {_mm(win.height)} window",
                             "move it inside the window (coordinates from the inner-bottom corner)")
+        if case.model.axisymmetric and win.radius(c.x - c.width / 2) <= _TOL:
+            # a ring through the axis has no true DC resistance (2 pi r / A with r -> 0)
+            raise CaseError(c.key, f"{c.winding} turn {c.turn} at r = {_mm(win.radius(c.x))} reaches the "
+                            "axis r = 0 (the window's inner wall)",
+                            "keep every turn off the axis: give window.margins.inner (the coil's inner "
+                            "radius) or move the turn outward")
     _check_overlaps(placed)
     return placed
 

@@ -14,6 +14,10 @@ paralleled_foils also against the hand value rho l / A with the two foils of
 each turn in parallel (IEC 60028 copper resistivity and temperature
 coefficient).  The check used to sum every conductor in series and printed
 6.2755 mOhm for its secondary (four foils in series), four times too much.
+
+Parallel rings of unequal resistance (untransposed and transposed) and litz
+strands: check, run and the field solution at 0 Hz against Kirchhoff's laws
+applied by hand to the exact ring resistances.
 """
 
 from __future__ import annotations
@@ -102,3 +106,126 @@ def test_paralleled_foils_secondary_against_rho_l_over_a(capsys):
     (title,) = {t for t, _ in printed}
     assert _within_printed_precision(printed[(title, "secondary")], secondary)
     assert _within_printed_precision(printed[(title, "primary")], primary)
+
+
+# ---------------------------------------------------------------- parallel conductors of unequal resistance
+
+UNEQUAL = """\
+title = "two turns of two parallel rings of unequal radius"
+
+[model]
+symmetry = "axisymmetric"
+temperature = "20 degC"
+
+[sweep]
+frequencies = [0]
+
+[window]
+width = "12 mm"
+height = "2 mm"
+boundary = "open"
+inner_radius = "0 mm"
+
+[[winding]]
+name = "coil"
+current = "1 A"
+
+[[parallel]]
+winding = "coil"
+conductors = 2
+transposed = {transposed}
+
+# in order: turn 1 (strands 1, 2), turn 2 (strands 1, 2); 0.2 mm x 1 mm rectangular rings
+[[conductor]]
+winding = "coil"
+shape = "rectangular"
+width = "0.2 mm"
+height = "1 mm"
+at = ["1 mm", "1 mm"]
+
+[[conductor]]
+winding = "coil"
+shape = "rectangular"
+width = "0.2 mm"
+height = "1 mm"
+at = ["2 mm", "1 mm"]
+
+[[conductor]]
+winding = "coil"
+shape = "rectangular"
+width = "0.2 mm"
+height = "1 mm"
+at = ["3 mm", "1 mm"]
+
+[[conductor]]
+winding = "coil"
+shape = "rectangular"
+width = "0.2 mm"
+height = "1 mm"
+at = ["10 mm", "1 mm"]
+"""
+RHO_20 = 1.7241e-8   # ohm*m, IEC 60028 annealed copper at 20 degC
+
+
+def _ring(r: float) -> float:
+    """2 pi rho / (h ln(r2/r1)): a rectangular ring r1..r2 of height h at DC (the
+    integral of 1/r over its section, see test_validation_axisymmetric)."""
+    return 2 * math.pi * RHO_20 / (1e-3 * math.log((r + 0.1e-3) / (r - 0.1e-3)))
+
+
+@pytest.mark.parametrize("transposed", [False, True])
+def test_parallel_rings_of_unequal_resistance(transposed, tmp_path, capsys):
+    """Untransposed: strand j (the j-th ring of every turn) in series, the strands
+    joined at the winding's ends, R = 1 / sum_j 1 / R_j; transposed (equal
+    shares): R = sum R_k / N^2 (Kirchhoff's laws, common practice).  check,
+    run's Rdc and the field solution at 0 Hz (where the rings share the current
+    by the solved field) agree."""
+    r = [_ring(x) for x in (1e-3, 2e-3, 3e-3, 10e-3)]
+    expected = (sum(r) / 4 if transposed else 1.0 / (1.0 / (r[0] + r[2]) + 1.0 / (r[1] + r[3])))
+    path = tmp_path / "unequal.toml"
+    path.write_text(UNEQUAL.replace("{transposed}", "true" if transposed else "false"))
+    (printed,) = _check_rdc(capsys, path).values()
+    assert _within_printed_precision(printed, expected)
+    assert main(["run", str(path), "--out", str(tmp_path / "out"), "--quiet"]) == 0
+    winding = json.loads((tmp_path / "out" / "results.json").read_text())["windings"]["coil"]
+    assert winding["rdc_ohm"] == pytest.approx(expected, rel=1e-12)
+    assert winding["loss_w"][0] == pytest.approx(expected, rel=1e-3)   # P(0 Hz) / (1 A)^2
+    if not transposed:
+        # rings in parallel within each turn, turns in series, would differ by over 0.5 %
+        # here: the rings of a turn are not joined to each other
+        series_of_parallel = r[0] * r[1] / (r[0] + r[1]) + r[2] * r[3] / (r[2] + r[3])
+        assert abs(series_of_parallel / expected - 1) > 5e-3
+
+
+LITZ = """\
+title = "litz wire, explicit strands"
+
+[model]
+length = "50 mm"
+
+[sweep]
+frequencies = ["100 kHz"]
+
+[window]
+width = "4 mm"
+height = "4 mm"
+boundary = "open"
+
+[[winding]]
+name = "coil"
+current = "1 A"
+
+[[layer]]
+winding = "coil"
+conductor = { shape = "litz", strands = 7, strand_diameter = "0.1 mm", bundle_diameter = "0.4 mm" }
+turns = 3
+"""
+
+
+def test_check_rdc_of_litz_strands_in_parallel(tmp_path, capsys):
+    """3 turns of 7 strands of 0.1 mm: R = 3 rho l / (7 pi d^2 / 4) (IEC 60028 copper
+    at 20 degC), the strands of a turn in parallel."""
+    path = tmp_path / "litz.toml"
+    path.write_text(LITZ)
+    (printed,) = _check_rdc(capsys, path).values()
+    assert _within_printed_precision(printed, 3 * RHO_20 * 50e-3 / (7 * math.pi * 0.1e-3 ** 2 / 4))

@@ -23,8 +23,8 @@ The layers are walked in the order of the case (the interleaving), each
 (axes swapped: the layers lie along x and the field runs across the window
 width).  Layer p of winding w adds the ampere-turns N_p I_w (RMS phasor, A;
 with [[parallel]] conductors N_p counts each conductor by its DC share of
-I_w, see :mod:`racfield.geometry.resistance`), so the magnetomotive force (MMF) is a staircase; the field along the layers
-at its two faces is
+I_w, see :mod:`racfield.geometry.resistance`), so the magnetomotive force
+(MMF) is a staircase; the field along the layers at its two faces is
 
     H_left = (MMF before the layer - M0) / h_w,   H_right = (MMF after - M0) / h_w   (A/m)
 
@@ -213,7 +213,8 @@ class LayerModel:
     along the layer / h_w; ``h_left``/``h_right`` RMS field phasors (A/m) at the
     faces toward and away from the reference wall; ``rdc`` (ohm/m planar, ohm
     axisymmetric) the layer's part of its winding's Rdc, sum s_k^2 R_k over its
-    conductors (s_k the DC share of the winding current, 1 without [[parallel]]); ``resistivity`` ohm*m.
+    conductors (s_k the DC share of the winding current, 1 without
+    [[parallel]]); ``resistivity`` ohm*m.
     """
 
     winding: str

@@ -139,12 +139,16 @@ def _gradient(problem, potential: np.ndarray, element: np.ndarray, ref: np.ndarr
 
 def _flux_density(problem, potential, points, element, ref) -> tuple[np.ndarray, np.ndarray]:
     """Planar: B = (dA/dy, -dA/dx).  Axisymmetric (x = r - r0, y = z):
-    B_r = -dA/dz, B_z = dA/dr + A/r."""
+    B_r = -dA/dz, B_z = dA/dr + A/r (on the axis r = 0: 2 dA/dr)."""
     value, grad = _value_and_gradient(problem, potential, element, ref)
     offset = getattr(problem, "radius_offset", None)
     if offset is None:
         return grad[1], -grad[0]
-    return -grad[1], grad[0] + value / (points[0] + offset)
+    r = points[0] + offset
+    # on the axis (r = 0, where A = 0) A/r tends to dA/dr: B_z = 2 dA/dr there
+    with np.errstate(divide="ignore", invalid="ignore"):
+        over_r = np.where(r > 0.0, value / np.where(r > 0.0, r, 1.0), grad[0])
+    return -grad[1], grad[0] + over_r
 
 
 def flux_density_at(problem, potential: np.ndarray, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -12,8 +12,8 @@ from typing import Callable
 import numpy as np
 
 from racfield.geometry.case import Case
-from racfield.geometry.layout import Conductor, dc_resistance, place
-from racfield.geometry.materials import material
+from racfield.geometry import resistance
+from racfield.geometry.layout import Conductor, place
 from racfield.geometry.mesher import WindowMesh, build_mesh
 from racfield.geometry.sizing import case_sizing
 
@@ -181,8 +181,7 @@ def use_reduced(case: Case, conductors: list[Conductor], method: str = "auto") -
 
 def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarray:
     """Resistivity (ohm*m) of every conductor at the case temperature."""
-    return np.array([material(case.winding(c.winding).material).resistivity(case.model.temperature_c)
-                     for c in conductors])
+    return np.array(resistance.conductor_resistivities(case, conductors))
 
 
 def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
@@ -306,8 +305,7 @@ def _setup(case: Case) -> _Sweep:
     # nominal conductor currents: equal shares among parallel conductors
     currents = excitation.membership @ (winding_currents / np.maximum(
         excitation.membership.sum(axis=0) / np.maximum(excitation.turns, 1), 1))
-    offset = case.window.inner_radius if case.model.axisymmetric else None
-    rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
+    rdc = np.array(resistance.conductor_resistances(case, conductors))
     freqs = np.array(case.frequencies)
     points = _Points.empty(len(freqs), len(conductors), excitation.basis.shape[1])
     info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}

@@ -129,7 +129,7 @@ def place(case: Case) -> list[Conductor]:
     for item in case.conductors:
         bw, bh, _, _ = _oriented(item.conductor, "across-width")
         placement.add(item.winding, item.conductor, item.at[0], item.at[1], bw, bh, item.key)
-    _check_inside(placement.placed, case.window)
+    _check_inside(placement.placed, case.window, case.model.axisymmetric)
     _check_overlaps(placement.placed)
     return placement.placed
 
@@ -174,14 +174,21 @@ def _place_layer(placement: _Placement, layer: Layer, span: _Span, position: flo
     return position
 
 
-def _check_inside(placed: list[Conductor], win: Window) -> None:
-    """Refuse the first conductor that reaches outside the window."""
+def _check_inside(placed: list[Conductor], win: Window, axisymmetric: bool) -> None:
+    """Refuse the first conductor that reaches outside the window (or, in an
+    axisymmetric model, reaches the axis)."""
     for c in placed:
         if (c.x - c.width / 2 < -_TOL or c.x + c.width / 2 > win.width + _TOL
                 or c.y - c.height / 2 < -_TOL or c.y + c.height / 2 > win.height + _TOL):
             raise CaseError(c.key, f"{c.winding} turn {c.turn} at ({_mm(c.x)}, {_mm(c.y)}) "
                             f"reaches outside the {_mm(win.width)} x {_mm(win.height)} window",
                             "move it inside the window (coordinates from the inner-bottom corner)")
+        if axisymmetric and win.radius(c.x - c.width / 2) <= _TOL:
+            # a ring through the axis has no true DC resistance (2 pi r / A with r -> 0)
+            raise CaseError(c.key, f"{c.winding} turn {c.turn} at r = {_mm(win.radius(c.x))} reaches the "
+                            "axis r = 0 (the window's inner wall)",
+                            "keep every turn off the axis: give window.margins.inner (the coil's inner "
+                            "radius) or move the turn outward")
 
 
 def _check_count(case: Case) -> None:

@@ -21,9 +21,10 @@ The layers are walked in the order of the case (the interleaving), each
 ``repeat`` expanded, from the reference wall: the inner wall (x = 0) for
 ``stacking = "across-width"``, the bottom (y = 0) for ``"along-height"``
 (axes swapped: the layers lie along x and the field runs across the window
-width).  Layer p of winding w adds the ampere-turns N_p I_w (RMS phasor, A),
-so the magnetomotive force (MMF) is a staircase; the field along the layers
-at its two faces is
+width).  Layer p of winding w adds the ampere-turns N_p I_w (RMS phasor, A;
+with [[parallel]] conductors N_p counts each conductor by its DC share of
+I_w, see :mod:`racfield.geometry.resistance`), so the magnetomotive force
+(MMF) is a staircase; the field along the layers at its two faces is
 
     H_left = (MMF before the layer - M0) / h_w,   H_right = (MMF after - M0) / h_w   (A/m)
 
@@ -57,7 +58,8 @@ import numpy as np
 from scipy.special import jve
 
 from racfield.geometry.case import Case
-from racfield.geometry.layout import Conductor, dc_resistance, place
+from racfield.geometry.layout import Conductor, place
+from racfield.geometry.resistance import conductor_resistances, dc_shares
 from racfield.geometry.materials import MU0, material, skin_depth
 
 METHODS = ("dowell", "ferreira")
@@ -210,7 +212,9 @@ class LayerModel:
     along the layer / h_w (round: turns x d / h_w); ``fill`` = span of the turns
     along the layer / h_w; ``h_left``/``h_right`` RMS field phasors (A/m) at the
     faces toward and away from the reference wall; ``rdc`` (ohm/m planar, ohm
-    axisymmetric) all turns of the layer in series; ``resistivity`` ohm*m.
+    axisymmetric) the layer's part of its winding's Rdc, sum s_k^2 R_k over its
+    conductors (s_k the DC share of the winding current, 1 without
+    [[parallel]]); ``resistivity`` ohm*m.
     """
 
     winding: str
@@ -286,8 +290,10 @@ def layer_model(case: Case, conductors: list[Conductor] | None = None) -> LayerM
     win = case.window
     across = win.stacking == "across-width"
     h_w = _field_path(case)
-    offset = win.inner_radius if case.model.axisymmetric else None
     temperature = case.model.temperature_c
+    # each conductor's DC resistance and share of its winding's current ([[parallel]] conductors)
+    resistances = conductor_resistances(case, conductors)
+    shares = dc_shares(case, conductors, resistances)
     notes: list[str] = []
     per_winding: dict[str, list[str]] = {w.name: [] for w in case.windings}
 
@@ -299,7 +305,8 @@ def layer_model(case: Case, conductors: list[Conductor] | None = None) -> LayerM
             instances.append((layer, conductors[position:position + layer.turns]))
             position += layer.turns
 
-    total = sum(layer.turns * case.winding(layer.winding).phasor for layer, _ in instances)
+    total = sum(sum(shares[c.index] for c in turns) * case.winding(layer.winding).phasor
+                for layer, turns in instances)
     m0, split = _reference_mmf(case, complex(total))
     if case.core is not None and case.core.gaps:
         detail = "fringing field not in the 1-D model"
@@ -330,8 +337,9 @@ def layer_model(case: Case, conductors: list[Conductor] | None = None) -> LayerM
             hi = max(c.x + c.width / 2 for c in turns)
         fill = (hi - lo) / h_w
         before = mmf
-        mmf = mmf + layer.turns * winding.phasor
-        rdc = sum(dc_resistance(c, rho, offset) for c in turns)
+        mmf = mmf + sum(shares[c.index] for c in turns) * winding.phasor
+        # the layer's part of the winding Rdc, sum s^2 R (see geometry.resistance)
+        rdc = sum(shares[c.index] ** 2 * resistances[c.index] for c in turns)
         layers.append(LayerModel(layer.winding, layer.key, spec.shape, layer.turns, thickness, diameter,
                                  porosity, fill, (before - m0) / h_w, (mmf - m0) / h_w, rdc, rho))
         partial = fill < PARTIAL_LAYER_LIMIT or (spec.shape != "round" and porosity < PARTIAL_LAYER_LIMIT)

@@ -17,7 +17,7 @@ from racfield.fem.sweep import SweepResult
 from racfield.geometry.case import Case
 from racfield.geometry.case.units import format_frequency  # noqa: F401 (the writers' formatter)
 
-from racfield.fem.parallel import basis_impedance, winding_impedance
+from racfield.geometry.resistance import winding_dc_resistance
 
 from .estimates import hand_estimates
 from .harmonics import harmonic_losses, harmonics_document
@@ -86,14 +86,11 @@ class Report:
 def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
     """Aggregate conductors into windings (turns in series)."""
     length = case.model.result_scale
-    # DC resistance through the same connection as the field solution: turns
-    # in series, parallel conductors sharing (Z_w = (P^T (E^T R E)^-1 P)^-1)
-    e, p = sweep.excitation.basis, sweep.excitation.windings
-    r_dc = winding_impedance(basis_impedance(np.diag(sweep.rdc_per_m), e), p).real * length
     results = []
     for n, w in enumerate(case.windings):
         idx = [c.index for c in sweep.conductors if c.winding == w.name]
-        rdc = float(r_dc[n, n])
+        # turns in series, parallel conductors joined as in the field solution
+        rdc = winding_dc_resistance(case, sweep.conductors, w.name, sweep.rdc_per_m)
         loss = sweep.loss_per_m[:, idx].sum(axis=1) * length
         if w.current > 0.0:
             rac = [float(p / w.current ** 2) for p in loss]

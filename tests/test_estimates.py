@@ -481,3 +481,25 @@ def test_ferreira_foil_note_and_round_wire_note():
     assert any(n.startswith("Ferreira's method is for round wire") for n in _notes(est, "ferreira", "secondary"))
     assert any(n.startswith("porosity factor") for n in _notes(est, "dowell", "primary"))
     assert est["ferreira"]["secondary"]["rac_over_rdc"] == est["dowell"]["secondary"]["rac_over_rdc"]
+
+
+def test_layer_model_counts_parallel_conductors_by_their_share():
+    """cases/paralleled_foils.toml: 20 primary turns at 1.6 A against 2 secondary
+    turns of two foils in parallel at 16 A, 180 degrees.  Each foil carries half
+    the secondary current, so the MMF staircase ends at zero (ampere-turn
+    balance, Ampere's law in the closed window: 20 x 1.6 A = 2 x 16 A), and the
+    secondary's layers add up to its Rdc, rho l / A with the two foils of a turn
+    in parallel (IEC 60028 copper at 100 degC)."""
+    from pathlib import Path
+
+    from racfield.geometry.load import load_case
+
+    case = load_case(Path(__file__).resolve().parent.parent / "cases" / "paralleled_foils.toml")
+    model = layer_model(case)
+    peak = max(abs(layer.h_right) for layer in model.layers)
+    assert abs(model.layers[-1].h_right) <= 1e-12 * peak        # ampere-turn balance
+    assert peak * model.h_w == pytest.approx(32.0, rel=1e-12)   # 20 turns x 1.6 A at the primary's end
+    rho = 1.7241e-8 * (1 + 0.00393 * (100.0 - 20.0))             # IEC 60028
+    foil = rho / (0.1e-3 * 5.2e-3)                                # ohm per metre of one foil
+    secondary = sum(layer.rdc for layer in model.layers if layer.winding == "secondary")
+    assert secondary == pytest.approx(2 * foil / 2, rel=1e-12)    # 2 turns of 2 foils in parallel, per metre

@@ -167,3 +167,48 @@ def test_message_names_the_unit_and_an_example():
     message = str(error("3.2 kg", "length"))
     assert message == f"{KEY}: unit 'kg' is not a length unit; write it such as \"0.45 mm\""
     assert "an angle unit" in str(error("3 kg", "angle"))
+
+
+# --- terahertz, time and the frequency formatter -------------------------------
+# SI prefixes T = 1e12, p = 1e-12 (BIPM, The International System of Units, SI
+# Brochure 9th ed. 2019, table 7); the README allows frequencies up to 1 THz.
+
+from racfield.geometry.case.sections import read_frequencies  # noqa: E402
+from racfield.geometry.case.table import Table  # noqa: E402
+from racfield.geometry.case.units import format_frequency, in_range  # noqa: E402
+
+
+def test_one_terahertz_is_a_frequency_in_range():
+    # SI Brochure: 1 THz = 1e12 Hz; the README's upper frequency limit is 1 THz
+    assert quantity("1 THz", "frequency", KEY) == pytest.approx(1e12, rel=1e-15)
+    assert in_range(1e12, "frequency", KEY, "1 THz") == 1e12
+    assert read_frequencies(Table({"frequencies": ["1 THz"]}, "sweep")) == (1e12,)
+
+
+def test_one_and_a_half_terahertz_is_refused_as_out_of_range():
+    # the README's limit: frequencies of 0 or between 1 mHz and 1 THz
+    assert quantity("1.5 THz", "frequency", KEY) == pytest.approx(1.5e12)
+    with pytest.raises(CaseError) as caught:
+        read_frequencies(Table({"frequencies": ["1 kHz", "1.5 THz"]}, "sweep"))
+    message = str(caught.value)
+    assert caught.value.key == "sweep.frequencies[2]" and len(message.splitlines()) == 1
+    assert message.startswith("sweep.frequencies[2]: ") and "out of range" in message and "1 THz" in message
+
+
+def test_picoseconds_are_a_time():
+    # SI Brochure: pico = 1e-12, so 100 ps = 1e-10 s
+    assert quantity("100 ps", "time", KEY) == pytest.approx(1e-10, rel=1e-15)
+    assert in_range(1e-10, "time", KEY, "100 ps") == pytest.approx(1e-10)
+
+
+@pytest.mark.parametrize("hz,text", [
+    (0.0, "0 Hz (DC)"),
+    (999.0, "999 Hz"),
+    (1e3, "1 kHz"),
+    (2.5e6, "2.5 MHz"),
+    (1e12, "1 THz"),
+])
+def test_format_frequency_uses_si_prefixes(hz, text):
+    # common practice: the largest SI prefix (SI Brochure 9th ed., table 7) that
+    # leaves a number of at least 1; DC written out
+    assert format_frequency(hz) == text

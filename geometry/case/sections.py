@@ -78,14 +78,9 @@ def read_frequencies(table: Table) -> tuple[float, ...]:
 
 def read_window(table: Table, model: Model) -> Window:
     width = table.quantity("width", "length", required=True, positive=True)
-    inner_radius = None
-    if model.axisymmetric:
-        inner_radius = table.quantity("inner_radius", "length", required=True, positive=True)
-    elif table.has("inner_radius"):
-        raise CaseError(table.key("inner_radius"), "is used by axisymmetric models only",
-                        'remove it, or set model.symmetry = "axisymmetric"')
-    height = table.quantity("height", "length", required=True, positive=True)
     boundary = table.text("boundary", "ideal-core", BOUNDARIES)
+    inner_radius = _inner_radius(table, model, boundary)
+    height = table.quantity("height", "length", required=True, positive=True)
     stacking = table.text("stacking", "across-width", STACKINGS)
     margins = Table(table.raw("margins", {}), table.key("margins"))
     sides = {side: margins.quantity(side, "length", 0.0, nonnegative=True)
@@ -100,6 +95,26 @@ def read_window(table: Table, model: Model) -> Window:
                         "make the margins smaller than the window height")
     return Window(width, height, boundary, sides["inner"], sides["outer"], sides["top"],
                   sides["bottom"], stacking, inner_radius)
+
+
+def _inner_radius(table: Table, model: Model, boundary: str) -> float | None:
+    """window.inner_radius in m (axisymmetric only): the radius of the inner
+    wall.  An open air-core coil may start at the axis (0, the default); with
+    an ideal or real core the inner wall is the centre post, of radius > 0."""
+    key = table.key("inner_radius")
+    if not model.axisymmetric:
+        if table.has("inner_radius"):
+            raise CaseError(key, "is used by axisymmetric models only",
+                            'remove it, or set model.symmetry = "axisymmetric"')
+        return None
+    if boundary == "open":
+        return table.quantity("inner_radius", "length", 0.0, nonnegative=True)
+    radius = table.quantity("inner_radius", "length", required=True, nonnegative=True)
+    if radius == 0.0:
+        raise CaseError(key, f'must be greater than zero with boundary = "{boundary}" (the inner wall '
+                        "is the centre post)", 'give the centre post radius, or set window.boundary = "open" '
+                        "for an air-core coil whose window starts at the axis")
+    return radius
 
 
 def read_conductor(table: Table) -> ConductorSpec:

@@ -20,11 +20,12 @@ from pathlib import Path
 
 from threadpoolctl import threadpool_limits
 
-from racfield.fem.sweep import conductor_resistivities, run_sweep
+from racfield.fem.sweep import run_sweep
 from racfield.geometry.case import Case, variant_cases, winding_turns
 from racfield.geometry.load import load_case, study_case
 from racfield.geometry.case.errors import CaseError
-from racfield.geometry.layout import dc_resistance, place
+from racfield.geometry.layout import place
+from racfield.geometry.resistance import conductor_resistances, winding_dc_resistance
 from racfield.geometry.materials import material, skin_depth
 
 from racfield.geometry.case.units import quantity
@@ -277,7 +278,6 @@ def command_run(args) -> int:
 
 def _check_text(case: Case) -> str:
     conductors = place(case)
-    rho = conductor_resistivities(case, conductors)
     win = case.window
     lines = [f"case: {case.title}",
              f"window: {win.width * 1e3:.4g} mm x {win.height * 1e3:.4g} mm, {win.boundary}, "
@@ -288,11 +288,11 @@ def _check_text(case: Case) -> str:
     copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
     lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")
+    resistances = conductor_resistances(case, conductors)
     for w in case.windings:
-        idx = [c.index for c in conductors if c.winding == w.name]
         layers = sum(l.repeat for l in case.layers if l.winding == w.name)
-        offset = win.inner_radius if case.model.axisymmetric else None
-        rdc = sum(dc_resistance(conductors[i], rho[i], offset) for i in idx) * case.model.result_scale
+        # turns in series, [[parallel]] conductors and litz strands in parallel, as run reports it
+        rdc = winding_dc_resistance(case, conductors, w.name, resistances)
         lines.append(f"{w.name:<14} {winding_turns(case, w.name):>5} {layers:>6} {w.material:<10} "
                      f"{w.current:>8.4g} A {rdc * 1e3:>9.5g} mOhm")
     lines.append("skin depth at the case temperature, and the thickest conductor of each winding over it:")

@@ -16,7 +16,8 @@ from dataclasses import dataclass
 
 from .case import Case, CaseError
 from .layout import Conductor
-from .materials import material, skin_depth
+from .materials import skin_depth
+from .resistance import conductor_resistivities
 
 #: the most element edges on conductor surfaces a case may ask for: about 1 to 2.5 million
 #: unknowns, near what a 24 GiB machine factorizes (768 round wires at 3 MHz: 48 000 edges,
@@ -49,7 +50,7 @@ def surface_size(conductor: Conductor, sizing: MeshSizing) -> float:
 def case_sizing(case: Case, conductors: list[Conductor]) -> MeshSizing:
     """The sizing of ``case``'s mesh: the smallest skin depth of its conductors'
     materials at the mesh frequency, and ``[mesh] density``."""
-    rho = min(material(case.winding(c.winding).material).resistivity(case.model.temperature_c) for c in conductors)
+    rho = min(conductor_resistivities(case, conductors))
     return MeshSizing(skin_depth=skin_depth(rho, case.mesh_frequency), density=case.mesh.density)
 
 

@@ -192,7 +192,7 @@ def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
     sizing = MeshSizing(skin_depth=delta, density=case.mesh.density)
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
                       sizing, case.mesh.far_radius_factor, case.core,
-                      axis_x=-case.window.inner_radius if case.model.axisymmetric else None)
+                      axis_x=None if case.axis_offset is None else -case.axis_offset)
 
 
 def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
@@ -204,7 +204,7 @@ def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
         strands = [(c.strands, c.strand_diameter, c.width) for c in conductors]
     return WindowProblem(window_mesh, 1.0 / resistivity,
                          case.core.relative_permeability if case.core else 1.0,
-                         case.window.inner_radius if case.model.axisymmetric else None, strands)
+                         case.axis_offset, strands)
 
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
@@ -277,7 +277,7 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
         sweep_info = {"method": "reduced", "expansion_hz": [float(freqs[i]) for i in sorted(chosen)],
                       "max_check_deviation": None, "reduced_size": model.size}
         timings["reduced_build_s"] = time.perf_counter() - start
-    offset = case.window.inner_radius if case.model.axisymmetric else None
+    offset = case.axis_offset
     rdc = np.array([dc_resistance(c, r, offset) for c, r in zip(conductors, rho)])
 
     def result(index: np.ndarray | slice = slice(None), warnings: list | None = None) -> SweepResult:

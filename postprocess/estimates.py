@@ -286,7 +286,7 @@ def layer_model(case: Case, conductors: list[Conductor] | None = None) -> LayerM
     win = case.window
     across = win.stacking == "across-width"
     h_w = _field_path(case)
-    offset = win.inner_radius if case.model.axisymmetric else None
+    offset = case.axis_offset
     temperature = case.model.temperature_c
     notes: list[str] = []
     per_winding: dict[str, list[str]] = {w.name: [] for w in case.windings}

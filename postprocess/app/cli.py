@@ -291,7 +291,7 @@ def _check_text(case: Case) -> str:
     for w in case.windings:
         idx = [c.index for c in conductors if c.winding == w.name]
         layers = sum(l.repeat for l in case.layers if l.winding == w.name)
-        offset = win.inner_radius if case.model.axisymmetric else None
+        offset = case.axis_offset
         rdc = sum(dc_resistance(conductors[i], rho[i], offset) for i in idx) * case.model.result_scale
         lines.append(f"{w.name:<14} {winding_turns(case, w.name):>5} {layers:>6} {w.material:<10} "
                      f"{w.current:>8.4g} A {rdc * 1e3:>9.5g} mOhm")

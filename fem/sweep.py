@@ -146,8 +146,8 @@ def reduced_plan(problem: WindowProblem, freqs: np.ndarray, connection: np.ndarr
     def expand(index: int) -> None:
         factorization = problem.factorize(freqs[index])
         vectors = moment_vectors(factorization, problem.mass, problem.coupling, connection, moments)
-        model.extend(vectors, omegas[index])
-        lower.extend(vectors[:, :(moments - 1) * columns], omegas[index])
+        model.extend(vectors)
+        lower.extend(vectors[:, :(moments - 1) * columns])
 
     def impedances(reduced) -> np.ndarray:
         return np.array([column_impedances(reduced.respond(w), connection) for w in omegas])

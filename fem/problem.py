@@ -64,7 +64,8 @@ def quadrature_interpolation(basis: Basis) -> sp.csr_matrix:
     """The sparse (nelems * nqp, N) matrix P of ``basis.interpolate``: (P a)[e
     nqp + q] = sum_i a[dof_i(e)] phi_i(x_eq), the values of the nodal field a at
     the quadrature points of every element of ``basis``, for many fields in
-    one product."""
+    one product (``interpolate`` takes one field a call and forms its gradient
+    too: four to eight times slower for the loss matrices)."""
     phi = np.array([np.asarray(b[0]) for b in basis.basis])                  # (Nbfun, nelems, nqp)
     rows = np.broadcast_to(np.arange(phi[0].size).reshape(phi.shape[1:]), phi.shape)
     cols = np.broadcast_to(basis.element_dofs[:, :, None], phi.shape)
@@ -101,7 +102,8 @@ class WindowProblem:
         self.stranded = np.array([n > 0 for n, _, _ in self.strands], dtype=bool)
         if self.stranded.any() and radius_offset is not None:
             raise ValueError("homogenized litz bundles need a planar model")
-        # a stranded region carries its imposed current density: no eddy current term
+        # sigma (S/m) per element; a stranded region carries its imposed
+        # current density: no eddy current term
         conductor = np.maximum(self.region, 0)
         self.sigma_e = np.where((self.region >= 0) & ~self.stranded[conductor], self.sigma_k[conductor], 0.0)
         self.far_basis = self._far_basis()

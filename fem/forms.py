@@ -6,10 +6,15 @@ u_k (V/m) the applied voltage per metre of conductor k.
 Axisymmetric, for the azimuthal A_phi(r, z) with r = x + r0: curl(nu curl A)
 + j omega sigma A = sigma V_k / (2 pi r) in ring k, V_k (V) the voltage per
 turn; the forms carry the volume weight 2 pi r and the 1/r terms of the curl.
+
+The conductor forms integrate over the elements of the conductors: with
+piecewise-constant (P0) trial functions the coupling form gives one column
+per element, summed into one column per conductor; the functionals are
+evaluated element by element (``Functional.elemental``) and summed likewise.
 """
 
 import numpy as np
-from skfem import BilinearForm, LinearForm
+from skfem import BilinearForm, Functional
 from skfem.helpers import dot, grad
 
 
@@ -31,14 +36,6 @@ def robin_mass(u, v, w):
     return u * v
 
 
-@LinearForm
-def applied_field_load(v, w):
-    """int g v ds on the far circle (to be scaled by nu0) for a uniform applied
-    field: g = dA_ext/dn + A_ext/R = 2 A_ext/R with A_ext = Bx (y - yc) - By (x - xc)."""
-    a_ext = w.bx * (w.x[1] - w.yc) - w.by * (w.x[0] - w.xc)
-    return 2.0 * a_ext / w.radius * v
-
-
 @BilinearForm
 def axisymmetric_stiffness(u, v, w):
     """int nu curl(u phi) . curl(v phi) 2 pi r dr dz, with curl(A phi) =
@@ -58,3 +55,39 @@ def axisymmetric_conductivity_mass(u, v, w):
 def axisymmetric_robin_mass(u, v, w):
     """int u v 2 pi r ds on the far arc, to be scaled by nu0 / R (dipole far field)."""
     return u * v * 2.0 * np.pi * (w.x[0] + w.r0)
+
+
+@BilinearForm
+def conductor_coupling(u, v, w):
+    """int weight u v dx with u the P0 indicator of one element: the coupling
+    B = int_k weight phi dx of its conductor, weight = sigma (S/m) for a solid
+    conductor, in planar and axisymmetric models alike, or 1/A_k (1/m^2) for a
+    homogenized litz bundle (its imposed uniform current density per ampere)."""
+    return w.weight * u * v
+
+
+@Functional
+def area(w):
+    """int dx dy (m^2)."""
+    return np.ones_like(w.x[0])
+
+
+@Functional
+def ring_conductance(w):
+    """int dr dz / (2 pi r) (1/m): the DC conductance of a ring per unit
+    conductivity, E = V / (2 pi r) in a ring of voltage V per turn."""
+    return 1.0 / (2.0 * np.pi * (w.x[0] + w.r0))
+
+
+@Functional
+def ohmic_loss(w):
+    """int sigma conj(e_i) e_j dx (W/m per unit^2) for the fields e = E / sigma
+    of two excitations, ``e_i`` (nelems, nqp) and a stack ``e_j`` (Ne, nelems, nqp)."""
+    return (w.sigma * np.conj(w.e_i)) * w.e_j
+
+
+@Functional
+def axisymmetric_ohmic_loss(w):
+    """int sigma conj(e_i) e_j 2 pi r dr dz (W per unit^2), as :func:`ohmic_loss`."""
+    # the per-point factors first: one product of the full (Ne, nelems, nqp) size
+    return (w.sigma * 2.0 * np.pi * (w.x[0] + w.r0) * np.conj(w.e_i)) * w.e_j

@@ -3,11 +3,12 @@
 The discrete system, for potentials a (free nodes) and conductor voltages per
 metre u, is
 
-    (K + j w M) a - B u = F          (field, F from an applied field)
+    (K + j w M) a - B u = 0          (field)
     -j w B^T a + G u    = I          (total current of each conductor)
 
 with G = diag(sigma_k S_k).  Dividing the second row by -j w (w > 0) makes it
-symmetric; scaled by s (order one entries) the bordered matrix is
+symmetric; scaled by s (order one entries, see :func:`stiffness_scale`) the
+bordered matrix is
 
     [ s S     -s B ]        S = K + j w M,  D = G / (j w)  (D = 0 at 0 Hz)
     [ -s B^T   s D ]
@@ -57,6 +58,12 @@ def backward_error(matrix: sp.spmatrix, z: np.ndarray, rhs: np.ndarray) -> float
     return float(ratio.max()) if ratio.size else 0.0
 
 
+def stiffness_scale(stiffness: sp.spmatrix) -> float:
+    """s = 1 / max |K_ij| (H/m): K has entries of order 1/mu0 ~ 1e6, s K and
+    s M are of order one (the solution is unchanged by the scaling)."""
+    return 1.0 / max(abs(stiffness).max(), 1e-300)
+
+
 def _aligned(parts: list[sp.coo_matrix], size: int) -> tuple[np.ndarray, np.ndarray, list[np.ndarray]]:
     """CSC pattern (indptr, indices) of the union of ``parts`` (size x size)
     and every part's values on it (duplicates summed)."""
@@ -81,11 +88,11 @@ class BorderedSystem:
     diagonal."""
 
     def __init__(self, stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
-                 conductance: np.ndarray, ordering: np.ndarray | None = None) -> None:
+                 conductance: np.ndarray, scale: float, ordering: np.ndarray | None = None) -> None:
+        """``scale``: s of :func:`stiffness_scale`."""
         n, nc = coupling.shape
         self.n, self.nc = n, nc
-        # K has entries of order 1/mu0 ~ 1e6: scale to order one (the solution is unchanged)
-        self.scale = s = 1.0 / max(abs(stiffness).max(), 1e-300)
+        self.scale = s = scale
         ordering = np.arange(n) if ordering is None else np.asarray(ordering)
         self.order = np.concatenate([ordering, n + np.arange(nc)])
         position = np.empty_like(self.order)
@@ -178,20 +185,17 @@ class BorderedFactorization:
 class Response:
     """Field response at one angular frequency.
 
-    ``admittance`` (Nc, Nc) S*m; ``applied_current`` (Nc,) the currents an
-    applied field drives with u = 0 (zeros when there is none);
-    ``flux_coupling`` (Nc, Nc) B^T S^-1 B at 0 Hz only (L = G^-1 B^T K^-1 B
-    G^-1 per metre), else None.  ``residual``: the largest residual (backward
-    error, see :func:`backward_error`) of the solves made for :meth:`field`
-    and :meth:`potential` so far (None before the first).
+    ``admittance`` (Nc, Nc) S*m; ``flux_coupling`` (Nc, Nc) B^T S^-1 B at 0 Hz
+    only (L = G^-1 B^T K^-1 B G^-1 per metre), else None.  ``residual``: the
+    largest residual (backward error, see :func:`backward_error`) of the
+    solves made for :meth:`field` and :meth:`potential` so far (None before
+    the first).
     """
 
-    def __init__(self, factorization: BorderedFactorization, applied_rhs: np.ndarray | None = None,
-                 conductance: np.ndarray | None = None) -> None:
+    def __init__(self, factorization: BorderedFactorization, conductance: np.ndarray | None = None) -> None:
         f = factorization
         self.factorization = f
         self.omega = f.omega
-        self.applied_rhs = applied_rhs
         self.residual: float | None = None
         if f.omega > 0.0:
             self.admittance = (1j * f.omega / f.scale) * f.schur
@@ -199,20 +203,10 @@ class Response:
         else:
             self.admittance = np.diag(conductance).astype(complex)
             self.flux_coupling = -f.schur / f.scale
-        nc = f.nc
-        self._applied_volts = np.zeros(nc, dtype=complex)
-        self.applied_current = np.zeros(nc, dtype=complex)
-        if applied_rhs is not None:
-            # [s F; 0] gives v0 = Sigma^-1 s B^T S^-1 F: the driven current -j w B^T S^-1 F
-            _, v0 = f.solve(f.scale * applied_rhs, np.zeros(nc))
-            self._applied_volts = v0
-            self.applied_current = -1j * f.omega * (f.schur @ v0) / f.scale
 
     def voltages(self, currents: np.ndarray) -> np.ndarray:
         """Conductor voltages per metre (V/m) that carry ``currents`` (Nc,) or (Nc, k) A."""
-        i = np.asarray(currents, dtype=complex)
-        driven = self.applied_current if i.ndim == 1 else self.applied_current[:, None]
-        return np.linalg.solve(self.admittance, i - driven)
+        return np.linalg.solve(self.admittance, np.asarray(currents, dtype=complex))
 
     def field(self, currents: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """(voltages V/m, potential Wb/m at the free nodes) that carry conductor
@@ -226,8 +220,6 @@ class Response:
             voltages = self.voltages(i)
             return voltages, self.potential(voltages)
         r1 = np.zeros((f.n,) + i.shape[1:], dtype=complex)
-        if self.applied_rhs is not None:
-            r1 += f.scale * (self.applied_rhs if i.ndim == 1 else self.applied_rhs[:, None])
         a, v, residual = f.solve_checked(r1, f.scale * i / (1j * f.omega))
         self._record(residual)
         return v, a
@@ -238,24 +230,19 @@ class Response:
 
     def potential(self, voltages: np.ndarray) -> np.ndarray:
         """Vector potential (Wb/m) at the free nodes for conductor ``voltages``
-        (Nc,) or (Nc, k): a = S^-1 (F + B u), one solve per column."""
+        (Nc,) or (Nc, k): a = S^-1 B u, one solve per column."""
         f = self.factorization
         u = np.asarray(voltages, dtype=complex)
-        v0 = self._applied_volts if u.ndim == 1 else self._applied_volts[:, None]
         r1 = np.zeros((f.n,) + u.shape[1:], dtype=complex)
-        if self.applied_rhs is not None:
-            r1 += f.scale * (self.applied_rhs if u.ndim == 1 else self.applied_rhs[:, None])
-        a, _, residual = f.solve_checked(r1, f.schur @ (u - v0))
+        a, _, residual = f.solve_checked(r1, f.schur @ u)
         self._record(residual)
         return a
 
 
-def respond(system: BorderedSystem, omega: float, conductance: np.ndarray,
-            applied_rhs: np.ndarray | None = None) -> Response:
+def respond(system: BorderedSystem, omega: float, conductance: np.ndarray) -> Response:
     """Factorize the bordered system once at ``omega`` (rad/s); the response
-    serves every conductor.  ``conductance`` is the diagonal of G (S*m),
-    ``applied_rhs`` the load of an applied field on the free nodes."""
-    return Response(system.factorize(omega), applied_rhs, conductance)
+    serves every conductor.  ``conductance`` is the diagonal of G (S*m)."""
+    return Response(system.factorize(omega), conductance)
 
 
 @dataclass
@@ -278,7 +265,7 @@ class StrandedResponse:
 
 def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
                      conductance: np.ndarray, resistance: np.ndarray, stranded: np.ndarray,
-                     omega: float, ordering: np.ndarray | None = None) -> StrandedResponse:
+                     omega: float, scale: float, ordering: np.ndarray | None = None) -> StrandedResponse:
     """One factorization of S = K(omega) + j omega M for solid conductors (voltage
     u_s unknown, B_s = int sigma phi) and stranded ones (current I_t imposed,
     B_t = (1/A_t) int phi, skin resistance ``resistance`` R_t ohm/m):
@@ -289,8 +276,8 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
     With X = S^-1 [B_s B_t], C = B^T X and Y = G - j w C_ss:
     Z_ss = Y^-1, Z_st = Y^-1 j w C_st, Z_ts = j w C_ts Y^-1,
     Z_tt = R_t + j w C_tt + j w C_ts Y^-1 j w C_st; a = X_s u_s + X_t I_t.
+    ``scale``: s of :func:`stiffness_scale` (that of the frequency-independent K0).
     """
-    scale = 1.0 / max(abs(stiffness).max(), 1e-300)
     system = (scale * stiffness + (1j * omega * scale) * mass).tocsc()
     order = np.arange(system.shape[0]) if ordering is None else ordering
     lu = _factorize(system[order][:, order])

@@ -4,7 +4,7 @@ Planar (x-y): per-metre quantities, voltages in V/m, impedances in ohm/m,
 losses in W/m.  Axisymmetric (r = x + r0, z = y): per-turn quantities, voltages
 in V, impedances in ohm, losses in W.  Both share one discrete structure
 
-    (K + j w M) a - B u = F,    -j w B^T a + G u = I
+    (K + j w M) a - B u = 0,    -j w B^T a + G u = I
 
 with B[:, k] = int_k sigma phi dx dy in both cases, and G = diag(sigma S_k)
 (planar) or diag(sigma int_k dr dz / (2 pi r)) (axisymmetric, the ring's DC
@@ -19,36 +19,19 @@ from functools import cached_property
 
 import numpy as np
 import scipy.sparse as sp
-from skfem import Basis, ElementTriP2, FacetBasis, MeshTri2
+from skfem import Basis, ElementTriP0, ElementTriP2, FacetBasis, MeshTri2
 
 from racfield.geometry.materials import MU0
 from racfield.geometry.mesher import CORE, WindowMesh
 
-from .forms import (applied_field_load, axisymmetric_conductivity_mass, axisymmetric_robin_mass,
-                    axisymmetric_stiffness, conductivity_mass, reluctivity_stiffness, robin_mass)
+from .forms import (area, axisymmetric_conductivity_mass, axisymmetric_ohmic_loss, axisymmetric_robin_mass,
+                    axisymmetric_stiffness, conductivity_mass, conductor_coupling, ohmic_loss,
+                    reluctivity_stiffness, ring_conductance, robin_mass)
 from .harmonic import (BorderedFactorization, BorderedSystem, Response, StrandedResponse, respond,
-                       respond_stranded)
+                       respond_stranded, stiffness_scale)
 from .litz import bundle_reluctivity, bundle_resistance
 from .ordering import nested_dissection
 from .reduced import ReducedModel
-
-
-@dataclass
-class FrequencySolution:
-    """The field at one frequency for one set of conductor currents.
-
-    ``impedance_per_m`` (Nc, Nc) ohm/m: the conductor impedance matrix (in a
-    closed ideal-core window only ampere-turn-balanced combinations of it are
-    meaningful, see README); ``voltage_per_m`` (Nc,) V/m; ``loss_per_m`` (Nc,)
-    W/m; ``potential`` (nodes,) Wb/m at every mesh node, or None.
-    """
-
-    frequency: float
-    impedance_per_m: np.ndarray
-    currents: np.ndarray
-    voltage_per_m: np.ndarray
-    loss_per_m: np.ndarray
-    potential: np.ndarray | None = None
 
 
 @dataclass
@@ -77,16 +60,28 @@ class WindingSolution:
     residual: float | None = None
 
 
+def quadrature_interpolation(basis: Basis) -> sp.csr_matrix:
+    """The sparse (nelems * nqp, N) matrix P of ``basis.interpolate``: (P a)[e
+    nqp + q] = sum_i a[dof_i(e)] phi_i(x_eq), the values of the nodal field a at
+    the quadrature points of every element of ``basis``, for many fields in
+    one product (``interpolate`` takes one field a call and forms its gradient
+    too: four to eight times slower for the loss matrices)."""
+    phi = np.array([np.asarray(b[0]) for b in basis.basis])                  # (Nbfun, nelems, nqp)
+    rows = np.broadcast_to(np.arange(phi[0].size).reshape(phi.shape[1:]), phi.shape)
+    cols = np.broadcast_to(basis.element_dofs[:, :, None], phi.shape)
+    return sp.csr_matrix((phi.ravel(), (rows.ravel(), cols.ravel())), shape=(phi[0].size, basis.N))
+
+
 class WindowProblem:
     """Assembled matrices of one meshed window.
 
     ``conductivity`` gives sigma (S/m) for every conductor, in mesh region
     order.  With an open boundary (or a core body) the far circle or arc
-    carries a first-order asymptotic condition through the same Robin term
-    nu0/R int A v: planar, dA/dn + A/R = g, exact for the net-current and
-    dipole parts of the outside field, with an applied uniform field entering
-    through g; axisymmetric, (1/R) d(R A)/dR = -A/R, exact for the dipole far
-    field of a coil (A ~ R^-2).  A symmetry plane or the axis carries A = 0.
+    carries a first-order asymptotic condition through the Robin term nu0/R
+    int A v: planar, dA/dn + A/R = 0, exact for the net-current and dipole
+    parts of the outside field; axisymmetric, (1/R) d(R A)/dR = -A/R, exact
+    for the dipole far field of a coil (A ~ R^-2).  A symmetry plane or the
+    axis carries A = 0.
     """
 
     def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray,
@@ -98,95 +93,121 @@ class WindowProblem:
         litz bundle, or (0, 0, 0) for a solid conductor (planar only)."""
         self.window_mesh = window_mesh
         self.radius_offset = radius_offset
-        axisymmetric = radius_offset is not None
         self.mesh = MeshTri2(window_mesh.points, window_mesh.triangles)
         self.basis = Basis(self.mesh, ElementTriP2())
+        self.region = window_mesh.region
         self.sigma_k = np.asarray(conductivity, dtype=float)
-        region = window_mesh.region
         self.conductor_count = len(self.sigma_k)
         self.strands = list(strands) if strands else [(0, 0.0, 0.0)] * self.conductor_count
         self.stranded = np.array([n > 0 for n, _, _ in self.strands], dtype=bool)
-        if self.stranded.any() and axisymmetric:
+        if self.stranded.any() and radius_offset is not None:
             raise ValueError("homogenized litz bundles need a planar model")
-        # a stranded region carries its imposed current density: no eddy current term
-        sigma_e = np.where((region >= 0) & ~self.stranded[np.maximum(region, 0)],
-                           self.sigma_k[np.maximum(region, 0)], 0.0)
-        nqp = self.basis.X.shape[1]
-        self.sigma_qp = np.repeat(sigma_e[:, None], nqp, axis=1)
-        self.region = region
-
-        nu_e = np.where(region == CORE, 1.0 / (MU0 * core_permeability), 1.0 / MU0)
-        nu_qp = np.repeat(nu_e[:, None], nqp, axis=1)
-        if axisymmetric:
-            r_qp = np.asarray(self.basis.global_coordinates())[0] + radius_offset
-            stiffness = axisymmetric_stiffness.assemble(self.basis, nu=nu_qp, r0=radius_offset)
-            mass = axisymmetric_conductivity_mass.assemble(self.basis, sigma=self.sigma_qp, r0=radius_offset)
-            # E = V / (2 pi r) - j w A and dV = 2 pi r dr dz
-            self.voltage_weight = 1.0 / (2.0 * np.pi * r_qp)
-            self.volume_weight = 2.0 * np.pi * r_qp
-        else:
-            stiffness = reluctivity_stiffness.assemble(self.basis, nu=nu_qp)
-            mass = conductivity_mass.assemble(self.basis, sigma=self.sigma_qp)
-            self.voltage_weight = np.ones_like(self.sigma_qp)
-            self.volume_weight = np.ones_like(self.sigma_qp)
-        self.far_basis = None
-        if window_mesh.far_radius is not None:
-            xs = window_mesh.symmetry_x
-            arc = self.mesh.boundary_facets()
-            if xs is not None:
-                # the symmetry plane carries A = 0, the rest of the boundary is the far arc
-                on_plane = np.abs(self.mesh.p[0, self.mesh.facets[:, arc]] - xs).max(axis=0) < 1e-9 * window_mesh.far_radius
-                arc = arc[~on_plane]
-            self.far_basis = FacetBasis(self.mesh, ElementTriP2(), facets=arc)
-            robin = (axisymmetric_robin_mass.assemble(self.far_basis, r0=radius_offset) if axisymmetric
-                     else robin_mass.assemble(self.far_basis))
-            stiffness = stiffness + robin / (MU0 * window_mesh.far_radius)
-            fixed = (self.basis.get_dofs(lambda x: np.abs(x[0] - xs) < 1e-9 * window_mesh.far_radius).all()
-                     if xs is not None else np.array([], dtype=int))
-            free = np.setdiff1d(np.arange(self.basis.N), fixed)
-        else:
-            # closed window: pin A at one wall node (fixes the constant in A;
-            # exact for ampere-turn-balanced currents, see README)
-            pin = self.mesh.boundary_nodes()[0]
-            free = np.setdiff1d(np.arange(self.basis.N), [pin])
-        self.free = free
-
-        # B[:, k] = int_k sigma phi dx (stranded: int_k phi dx / A_k), built element by element
-        local = np.array([(np.asarray(phi[0]) * self.basis.dx).sum(axis=1) for phi in self.basis.basis])
-        in_conductor = region >= 0
-        self.areas = np.bincount(region[in_conductor], weights=self.basis.dx.sum(axis=1)[in_conductor],
-                                 minlength=self.conductor_count)
-        dofs = self.basis.element_dofs[:, in_conductor]
-        cols = np.broadcast_to(region[in_conductor], dofs.shape)
-        weight_e = np.where(self.stranded[np.maximum(region, 0)],
-                            1.0 / np.maximum(self.areas[np.maximum(region, 0)], 1e-300), sigma_e)
-        data = local[:, in_conductor] * weight_e[in_conductor]
-        coupling = sp.coo_matrix((data.ravel(), (dofs.ravel(), cols.ravel())),
-                                 shape=(self.basis.N, self.conductor_count)).tocsr()
+        # sigma (S/m) per element; a stranded region carries its imposed
+        # current density: no eddy current term
+        conductor = np.maximum(self.region, 0)
+        self.sigma_e = np.where((self.region >= 0) & ~self.stranded[conductor], self.sigma_k[conductor], 0.0)
+        self.far_basis = self._far_basis()
+        self.free = self._free_dofs()
+        stiffness, mass = self._field_matrices(core_permeability)
+        coupling = self._conductor_integrals()
         # unit-reluctivity stiffness of every stranded region (its nu_eff varies with frequency)
         self.region_stiffness = {
-            int(k): reluctivity_stiffness.assemble(
-                Basis(self.mesh, ElementTriP2(), elements=np.nonzero(region == k)[0]), nu=1.0).tocsr()
+            int(k): reluctivity_stiffness.assemble(self.basis.with_elements(np.nonzero(self.region == k)[0]),
+                                                   nu=1.0).tocsr()
             for k in np.nonzero(self.stranded)[0]}
-        # DC conductance: sigma * int_k (voltage weight) dx dy
-        weighted = (self.voltage_weight * self.basis.dx).sum(axis=1)
-        self.conductance = self.sigma_k * np.bincount(region[in_conductor], weights=weighted[in_conductor],
-                                                      minlength=self.conductor_count)
-        # the ohmic loss is integrated at the quadrature points of the solid conductors
-        solid = np.nonzero(in_conductor & ~self.stranded[np.maximum(region, 0)])[0]
-        self.loss_elements = solid
-        # A at their quadrature points from the nodal values: a sparse (ne * nqp, nodes) map
-        phi = np.array([np.asarray(b[0])[solid] for b in self.basis.basis])          # (6, ne, nqp)
-        rows = np.broadcast_to(np.arange(phi.shape[1] * phi.shape[2]).reshape(phi.shape[1:]), phi.shape)
-        cols = np.broadcast_to(self.basis.element_dofs[:, solid][:, :, None], phi.shape)
-        self.loss_interpolation = sp.csr_matrix((phi.ravel(), (rows.ravel(), cols.ravel())),
-                                                shape=(phi.shape[1] * phi.shape[2], self.basis.N))
-        self.loss_voltage_weight = np.ascontiguousarray(self.voltage_weight[solid])
-        self.loss_weight = (self.sigma_qp * self.volume_weight * self.basis.dx)[solid]
+        self._loss_quadrature()
+        free = self.free
         self.stiffness = stiffness[free][:, free].tocsc()
         self.mass = mass[free][:, free].tocsc()
         self.coupling = coupling[free]
         self.region_stiffness_free = {k: m[free][:, free].tocsc() for k, m in self.region_stiffness.items()}
+        self.scale = stiffness_scale(self.stiffness)   #: s (H/m), see fem.harmonic
+
+    def _at_quadrature(self, per_element: np.ndarray) -> np.ndarray:
+        """Per-element values (ne,) repeated at the quadrature points, (ne, nqp)."""
+        return np.repeat(per_element[:, None], self.basis.X.shape[1], axis=1)
+
+    def _far_basis(self) -> FacetBasis | None:
+        """The facets of the far circle or arc (None in a closed window); a
+        symmetry plane x = symmetry_x (A = 0) is not part of it."""
+        window_mesh = self.window_mesh
+        if window_mesh.far_radius is None:
+            return None
+        arc = self.mesh.boundary_facets()
+        if window_mesh.symmetry_x is not None:
+            gap = np.abs(self.mesh.p[0, self.mesh.facets[:, arc]] - window_mesh.symmetry_x).max(axis=0)
+            arc = arc[gap >= 1e-9 * window_mesh.far_radius]
+        return FacetBasis(self.mesh, ElementTriP2(), facets=arc)
+
+    def _free_dofs(self) -> np.ndarray:
+        """The unknowns: all DOFs but those of the symmetry plane (A = 0) or,
+        in a closed window, one wall node (pinning A fixes its constant; exact
+        for ampere-turn-balanced currents, see README)."""
+        window_mesh = self.window_mesh
+        xs = window_mesh.symmetry_x
+        if window_mesh.far_radius is None:
+            fixed = self.mesh.boundary_nodes()[:1]
+        elif xs is not None:
+            fixed = self.basis.get_dofs(lambda x: np.abs(x[0] - xs) < 1e-9 * window_mesh.far_radius).all()
+        else:
+            fixed = np.array([], dtype=int)
+        return np.setdiff1d(np.arange(self.basis.N), fixed)
+
+    def _field_matrices(self, core_permeability: float) -> tuple[sp.spmatrix, sp.spmatrix]:
+        """Stiffness K (with the far boundary's Robin term) and conductivity
+        mass M on all DOFs."""
+        nu = self._at_quadrature(np.where(self.region == CORE, 1.0 / (MU0 * core_permeability), 1.0 / MU0))
+        sigma = self._at_quadrature(self.sigma_e)
+        r0 = self.radius_offset
+        if r0 is None:
+            stiffness = reluctivity_stiffness.assemble(self.basis, nu=nu)
+            mass = conductivity_mass.assemble(self.basis, sigma=sigma)
+        else:
+            stiffness = axisymmetric_stiffness.assemble(self.basis, nu=nu, r0=r0)
+            mass = axisymmetric_conductivity_mass.assemble(self.basis, sigma=sigma, r0=r0)
+        if self.far_basis is not None:
+            robin = (robin_mass.assemble(self.far_basis) if r0 is None
+                     else axisymmetric_robin_mass.assemble(self.far_basis, r0=r0))
+            stiffness = stiffness + robin / (MU0 * self.window_mesh.far_radius)
+        return stiffness, mass
+
+    def _conductor_integrals(self) -> sp.spmatrix:
+        """Set ``areas`` (Nc,) m^2 and the DC conductance ``conductance`` (Nc,)
+        S*m (axisymmetric: S), sigma int_k dx dy or sigma int_k dr dz / (2 pi r);
+        return the coupling B (nodes, Nc), int_k sigma phi dx (stranded:
+        int_k phi dx / A_k)."""
+        elements = np.nonzero(self.region >= 0)[0]
+        conductor = self.region[elements]
+        basis = self.basis.with_elements(elements)
+        count = self.conductor_count
+        self.areas = np.bincount(conductor, area.elemental(basis), count)
+        per_sigma = (self.areas if self.radius_offset is None
+                     else np.bincount(conductor, ring_conductance.elemental(basis, r0=self.radius_offset), count))
+        self.conductance = self.sigma_k * per_sigma
+        weight = np.where(self.stranded[conductor], 1.0 / np.maximum(self.areas[conductor], 1e-300),
+                          self.sigma_e[elements])
+        # one column per element (P0 indicator), summed into its conductor's column
+        per_element = conductor_coupling.assemble(basis.with_element(ElementTriP0()), basis,
+                                                  weight=self._at_quadrature(weight))
+        indicator = sp.csr_matrix((np.ones(len(elements)), (elements, conductor)),
+                                  shape=(self.mesh.nelements, count))
+        return (per_element @ indicator).tocsr()
+
+    def _loss_quadrature(self) -> None:
+        """The solid conductors' elements, where the ohmic loss is integrated
+        (``loss_basis``), with their conductor, conductivity (S/m) and voltage
+        weight w (E = sigma (u w - j omega A): 1, or 1/(2 pi r) in 1/m) at the
+        quadrature points."""
+        conductor = np.maximum(self.region, 0)
+        solid = np.nonzero((self.region >= 0) & ~self.stranded[conductor])[0]
+        self.loss_basis = self.basis.with_elements(solid)
+        self.loss_conductor = self.region[solid]
+        self.loss_sigma = self._at_quadrature(self.sigma_e[solid])
+        self.loss_interpolation = quadrature_interpolation(self.loss_basis)
+        self.loss_voltage_weight = np.ones_like(self.loss_sigma)
+        if self.radius_offset is not None:
+            r = np.asarray(self.loss_basis.global_coordinates())[0] + self.radius_offset
+            self.loss_voltage_weight = 1.0 / (2.0 * np.pi * r)
 
     def bundle_laws(self, frequency: float) -> tuple[np.ndarray, np.ndarray]:
         """(nu_eff m/H, skin resistance ohm/m) of every conductor at ``frequency``
@@ -209,7 +230,8 @@ class WindowProblem:
     @cached_property
     def bordered(self) -> BorderedSystem:
         """The bordered matrix in its fill-reducing order (one per mesh)."""
-        return BorderedSystem(self.stiffness, self.mass, self.coupling, self.conductance, self.ordering)
+        return BorderedSystem(self.stiffness, self.mass, self.coupling, self.conductance, self.scale,
+                              self.ordering)
 
     def respond_stranded(self, frequency: float) -> StrandedResponse:
         """Factorize K(omega) + j omega M, K(omega) = K0 + sum (nu_eff - nu0) K_region,
@@ -219,30 +241,15 @@ class WindowProblem:
         for k, m in self.region_stiffness_free.items():
             stiffness = stiffness + (nu[k] - 1.0 / MU0) * m
         return respond_stranded(stiffness, self.mass, self.coupling, self.conductance, resistance,
-                                self.stranded, 2.0 * np.pi * frequency, self.ordering)
+                                self.stranded, 2.0 * np.pi * frequency, self.scale, self.ordering)
 
     @property
     def unknowns(self) -> int:
         return len(self.free)
 
-    def applied_field_rhs(self, b_applied: tuple[complex, complex]) -> np.ndarray:
-        """Load vector for a uniform applied flux density (Bx, By) in T (RMS phasors)."""
-        if self.far_basis is None or self.radius_offset is not None:
-            raise ValueError("an applied field needs a planar open boundary")
-        xc, yc = self.window_mesh.far_centre
-        radius = self.window_mesh.far_radius
-        bx, by = b_applied
-
-        # real and imaginary parts assembled apart (the forms are real)
-        parts = [applied_field_load.assemble(self.far_basis, bx=complex(bx).real, by=complex(by).real,
-                                             xc=xc, yc=yc, radius=radius),
-                 applied_field_load.assemble(self.far_basis, bx=complex(bx).imag, by=complex(by).imag,
-                                             xc=xc, yc=yc, radius=radius)]
-        return (parts[0] + 1j * parts[1])[self.free] / MU0
-
-    def respond(self, frequency: float, applied_rhs: np.ndarray | None = None) -> Response:
+    def respond(self, frequency: float) -> Response:
         """Factorize at ``frequency`` (Hz) and return the all-conductor response."""
-        return respond(self.bordered, 2.0 * np.pi * frequency, self.conductance, applied_rhs)
+        return respond(self.bordered, 2.0 * np.pi * frequency, self.conductance)
 
     def factorize(self, frequency: float) -> BorderedFactorization:
         """The bordered system's LU at ``frequency`` (Hz), e.g. for moments."""
@@ -252,27 +259,7 @@ class WindowProblem:
         """An empty reduced model of this window (solid conductors only)."""
         if self.stranded.any():
             raise ValueError("litz bundles make K frequency dependent: no reduced model")
-        return ReducedModel(self.stiffness, self.mass, self.coupling, self.conductance)
-
-    def solve(self, frequency: float, currents: np.ndarray, keep_field: bool = False,
-              b_applied: tuple[complex, complex] | None = None) -> FrequencySolution:
-        """Field and losses at ``frequency`` (Hz) with conductor ``currents`` (A RMS)
-        (solid conductors only; see :meth:`solve_windings` for litz bundles)."""
-        if self.stranded.any():
-            raise ValueError("solve() takes solid conductors only; use solve_windings()")
-        rhs = None if b_applied is None else self.applied_field_rhs(b_applied)
-        response = self.respond(frequency, rhs)
-        currents = np.asarray(currents, dtype=complex)
-        potential = np.zeros(self.basis.N, dtype=complex)
-        voltages, potential[self.free] = response.field(currents)
-        loss = self.conductor_losses(frequency, voltages, potential)
-        impedance = np.linalg.inv(response.admittance)
-        return FrequencySolution(frequency, impedance, currents, voltages, loss,
-                                 potential if keep_field else None)
-
-    def conductor_losses(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
-        """Ohmic loss per metre (W/m) of every conductor for one excitation."""
-        return self.loss_matrices(frequency, voltages[:, None], potential[:, None])[:, 0, 0].real
+        return ReducedModel(self.stiffness, self.mass, self.coupling, self.conductance, self.scale)
 
     def loss_matrices(self, frequency: float, voltages: np.ndarray, potentials: np.ndarray) -> np.ndarray:
         """Loss cross terms of ``Ne`` excitations: ``voltages`` (Nc, Ne) V/m and
@@ -283,27 +270,25 @@ class WindowProblem:
         1/(2 pi r) in axisymmetric models), never expanded: u w and j omega A
         nearly cancel in a strongly inductive conductor."""
         omega = 2.0 * np.pi * frequency
-        elements = self.loss_elements
-        k = self.region[elements]
+        basis = self.loss_basis
+        u = np.asarray(voltages, dtype=complex)[self.loss_conductor]                    # (ne, Ne)
         potentials = np.asarray(potentials, dtype=complex)
-        shape = self.loss_weight.shape
-        u = np.asarray(voltages, dtype=complex)[k]                                     # (ne, Ne)
         count = u.shape[1]
         both = self.loss_interpolation @ np.hstack([potentials.real, potentials.imag])
-        a_qp = both[:, :count] + 1j * both[:, count:]
-        e = [u[:, n, None] * self.loss_voltage_weight - 1j * omega * a_qp[:, n].reshape(shape)
-             for n in range(count)]
-        per_element = np.empty((len(elements), count, count), dtype=complex)
+        a_qp = (both[:, :count] + 1j * both[:, count:]).T.reshape((count,) + self.loss_sigma.shape)
+        e = u.T[:, :, None] * self.loss_voltage_weight - 1j * omega * a_qp                # (Ne, ne, nqp)
+        loss, r0 = ((ohmic_loss, {}) if self.radius_offset is None
+                    else (axisymmetric_ohmic_loss, {"r0": self.radius_offset}))
+        per_element = np.empty((basis.nelems, count, count), dtype=complex)
         for i in range(count):
-            weighted = e[i].conj() * self.loss_weight
-            for j in range(i, count):
-                per_element[:, i, j] = (weighted * e[j]).sum(axis=1)
-                per_element[:, j, i] = per_element[:, i, j].conj()
-        flat = per_element.reshape(len(elements), count * count)
+            # the upper triangle, the lower one by symmetry (Q is Hermitian)
+            per_element[:, i, i:] = loss.elemental(basis, sigma=self.loss_sigma, e_i=e[i], e_j=e[i:], **r0).T
+            per_element[:, i + 1:, i] = per_element[:, i, i + 1:].conj()
+        flat = per_element.reshape(basis.nelems, count * count)
         out = np.empty((self.conductor_count, count * count), dtype=complex)
         for column in range(count * count):
-            out[:, column] = (np.bincount(k, flat[:, column].real, self.conductor_count)
-                              + 1j * np.bincount(k, flat[:, column].imag, self.conductor_count))
+            out[:, column] = (np.bincount(self.loss_conductor, flat[:, column].real, self.conductor_count)
+                              + 1j * np.bincount(self.loss_conductor, flat[:, column].imag, self.conductor_count))
         return out.reshape(self.conductor_count, count, count)
 
     def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents,

@@ -38,7 +38,6 @@ class ReducedResponse:
     def __init__(self, omega: float, admittance: np.ndarray, basis: np.ndarray, reduced: np.ndarray) -> None:
         self.omega = omega
         self.admittance = admittance
-        self.applied_current = np.zeros(admittance.shape[0], dtype=complex)
         self.flux_coupling = None
         self.residual = None    #: no full solve behind a reduced response
         self._basis = basis
@@ -91,8 +90,9 @@ class ReducedModel:
     orthonormal basis V of the potentials (see the module docstring)."""
 
     def __init__(self, stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
-                 conductance: np.ndarray) -> None:
-        self.scale = 1.0 / max(abs(stiffness).max(), 1e-300)
+                 conductance: np.ndarray, scale: float) -> None:
+        """``scale``: s of :func:`fem.harmonic.stiffness_scale`."""
+        self.scale = scale
         self.stiffness = (self.scale * stiffness).tocsc()
         self.mass = (self.scale * mass).tocsc()
         self.coupling = coupling.tocsc()
@@ -100,14 +100,13 @@ class ReducedModel:
         self.basis = np.zeros((coupling.shape[0], 0))
         self.k_r = self.m_r = np.zeros((0, 0))
         self.b_r = np.zeros((0, coupling.shape[1]))
-        self.expansion_omegas: list[float] = []
         self._evaluator: ReducedEvaluator | None = None
 
     @property
     def size(self) -> int:
         return self.basis.shape[1]
 
-    def extend(self, vectors: np.ndarray, omega: float | None = None) -> None:
+    def extend(self, vectors: np.ndarray) -> None:
         """Add the real and imaginary parts of ``vectors`` (n, m) to V
         (orthonormalized, near-dependent directions dropped)."""
         block = np.hstack([vectors.real, vectors.imag])
@@ -128,34 +127,27 @@ class ReducedModel:
         k_r[r:, :r], m_r[r:, :r] = k_r[:r, r:].T, m_r[:r, r:].T
         self.k_r, self.m_r = 0.5 * (k_r + k_r.T), 0.5 * (m_r + m_r.T)
         self.b_r = np.vstack([self.b_r, (self.coupling.T @ new).T])
-        if omega is not None:
-            self.expansion_omegas.append(omega)
         self._evaluator = None
 
-    def truncated(self, size: int) -> "ReducedEvaluator":
-        """The reduced model on the first ``size`` basis vectors."""
-        return ReducedEvaluator(self, size)
-
     def respond(self, omega: float) -> ReducedResponse:
-        """The reduced response at ``omega`` (rad/s) on the whole basis."""
+        """The reduced response at ``omega`` (rad/s)."""
         if self._evaluator is None:
-            self._evaluator = ReducedEvaluator(self, self.size)
+            self._evaluator = ReducedEvaluator(self)
         return self._evaluator.respond(omega)
 
 
 class ReducedEvaluator:
-    """Frequency evaluation of a reduced model on a leading part of its basis.
+    """Frequency evaluation of a reduced model (its basis as it stands).
 
     M_r q = lambda K_r q with Q^T K_r Q = I diagonalizes the pencil:
     (K_r + j w M_r)^-1 = Q (I + j w Lambda)^-1 Q^T.
     """
 
-    def __init__(self, model: ReducedModel, size: int) -> None:
+    def __init__(self, model: ReducedModel) -> None:
         self.model = model
-        self.basis = model.basis[:, :size]
-        k_r, m_r = model.k_r[:size, :size], model.m_r[:size, :size]
-        self.b_r = model.b_r[:size]
-        self.eig, self.q = scipy.linalg.eigh(m_r, k_r)
+        self.basis = model.basis
+        self.b_r = model.b_r
+        self.eig, self.q = scipy.linalg.eigh(model.m_r, model.k_r)
         self.qtb = self.q.T @ (model.scale * self.b_r)
 
     def respond(self, omega: float) -> ReducedResponse:

@@ -147,8 +147,8 @@ def reduced_plan(problem: WindowProblem, freqs: np.ndarray, connection: np.ndarr
     def expand(index: int) -> None:
         factorization = problem.factorize(freqs[index])
         vectors = moment_vectors(factorization, problem.mass, problem.coupling, connection, moments)
-        model.extend(vectors, omegas[index])
-        lower.extend(vectors[:, :(moments - 1) * columns], omegas[index])
+        model.extend(vectors)
+        lower.extend(vectors[:, :(moments - 1) * columns])
 
     def impedances(reduced) -> np.ndarray:
         return np.array([column_impedances(reduced.respond(w), connection) for w in omegas])
@@ -189,7 +189,7 @@ def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:
     (``[mesh] frequency``, else the highest frequency of the case)."""
     return build_mesh(conductors, case.window.width, case.window.height, case.window.boundary,
                       case_sizing(case, conductors), case.mesh.far_radius_factor, case.core,
-                      axis_x=-case.window.inner_radius if case.model.axisymmetric else None)
+                      axis_x=None if case.axis_offset is None else -case.axis_offset)
 
 
 def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
@@ -201,7 +201,7 @@ def problem_for(case: Case, window_mesh: WindowMesh, resistivity: np.ndarray,
         strands = [(c.strands, c.strand_diameter, c.width) for c in conductors]
     return WindowProblem(window_mesh, 1.0 / resistivity,
                          case.core.relative_permeability if case.core else 1.0,
-                         case.window.inner_radius if case.model.axisymmetric else None, strands)
+                         case.axis_offset, strands)
 
 
 @dataclass

@@ -39,7 +39,7 @@ def conductor_resistivities(case: Case, conductors: Sequence[Conductor]) -> list
 def conductor_resistances(case: Case, conductors: Sequence[Conductor]) -> list[float]:
     """DC resistance of every conductor: ohm per metre of length (planar) or
     ohm per ring (axisymmetric, radius r = x + window.inner_radius)."""
-    offset = (case.window.inner_radius or 0.0) if case.model.axisymmetric else None
+    offset = case.axis_offset
     return [dc_resistance(c, rho, offset) for c, rho in zip(conductors, conductor_resistivities(case, conductors))]
 
 

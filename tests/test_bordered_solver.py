@@ -128,8 +128,7 @@ def test_reduced_model_is_exact_at_its_expansion_frequency():
     case, conductors, problem = _problem("ideal-core")
     connection = excitation_basis(case, conductors).basis
     model = problem.reduced_model()
-    model.extend(moment_vectors(problem.factorize(FREQUENCY), problem.mass, problem.coupling, connection, 4),
-                 2.0 * np.pi * FREQUENCY)
+    model.extend(moment_vectors(problem.factorize(FREQUENCY), problem.mass, problem.coupling, connection, 4))
     for f, tolerance in ((FREQUENCY, 1e-9), (1.3 * FREQUENCY, 1e-6)):
         full = column_impedances(problem.respond(f), connection)
         reduced = column_impedances(model.respond(2.0 * np.pi * f), connection)

@@ -175,7 +175,7 @@ def test_flux_density_on_the_axis():
     conductors = place(case)
     problem = WindowProblem(mesh_case(case, conductors), 1.0 / conductor_resistivities(case, conductors),
                             radius_offset=0.0)
-    potential = problem.solve(0.0, np.array([1.0]), keep_field=True).potential
+    potential = problem.solve_windings(0.0, np.ones((1, 1)), [1.0], keep_field=True).potential
     z_loop = 2 * A
     dz = np.array([0.0, 0.25, 0.5]) * LOOP_RADIUS
     for r in (0.0, 1e-4 * LOOP_RADIUS):

@@ -228,6 +228,12 @@ class Case:
         return next(w for w in self.windings if w.name == name)
 
     @property
+    def axis_offset(self) -> float | None:
+        """m: the radius r0 of window x = 0 in an axisymmetric model (r = x + r0,
+        the inner wall's radius); None for a planar model."""
+        return self.window.inner_radius if self.model.axisymmetric else None
+
+    @property
     def mesh_frequency(self) -> float:
         """Hz the mesh is sized for: ``[mesh] frequency``, else the highest solved frequency."""
         return self.mesh.frequency if self.mesh.frequency is not None else max(self.frequencies)

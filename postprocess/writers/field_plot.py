@@ -22,7 +22,7 @@ def write(report: Report, directory: Path) -> list[Path]:
         return []
     window = report.case.window
     # axisymmetric models are drawn at their true radius r = x + r0
-    shift = window.inner_radius if report.case.model.axisymmetric else 0.0
+    shift = report.case.axis_offset or 0.0
     x_mm, y_mm = (snap.points[0] + shift) * 1e3, snap.points[1] * 1e3
     s_mm = shift * 1e3
     region4 = np.tile(snap.region, 4)

@@ -15,7 +15,7 @@ def write(report: Report, directory: Path) -> list[Path]:
     doc = mmf_document(report)
     if doc is None:
         return []
-    shift = report.case.window.inner_radius if report.case.model.axisymmetric else 0.0
+    shift = report.case.axis_offset or 0.0
     s_mm = (np.array(doc["position_m"]) + shift) * 1e3
     figure = new_figure(7.0, 4.0)
     ax = figure.add_subplot()

@@ -63,7 +63,7 @@ def mmf_profile(problem, potential: np.ndarray, conductors: list[Conductor], cur
     component = (hy if across_width else -hx).reshape(samples, line_points)
     component = np.where(np.isnan(component), 0.0, component)
     field = np.trapezoid(component, t, axis=1)
-    if getattr(problem, "radius_offset", None) is not None:
+    if problem.radius_offset is not None:
         field = -field
     enclosed = sum(currents[c.index] * _fraction_before(c, s, across_width) for c in conductors)
     ideal = field[0] + enclosed - (enclosed[0] if np.ndim(enclosed) else 0.0)

@@ -141,7 +141,7 @@ def _flux_density(problem, potential, points, element, ref) -> tuple[np.ndarray,
     """Planar: B = (dA/dy, -dA/dx).  Axisymmetric (x = r - r0, y = z):
     B_r = -dA/dz, B_z = dA/dr + A/r (on the axis r = 0: 2 dA/dr)."""
     value, grad = _value_and_gradient(problem, potential, element, ref)
-    offset = getattr(problem, "radius_offset", None)
+    offset = problem.radius_offset
     if offset is None:
         return grad[1], -grad[0]
     r = points[0] + offset

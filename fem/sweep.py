@@ -13,7 +13,7 @@ import numpy as np
 
 from racfield.geometry.case import Case
 from racfield.geometry.layout import Conductor, dc_resistance, place
-from racfield.geometry.materials import material, skin_depth
+from racfield.geometry.materials import conductor_resistivities, skin_depth  # noqa: F401 (re-exported)
 from racfield.geometry.mesher import MeshSizing, WindowMesh, build_mesh
 
 from .guards import sweep_warnings
@@ -176,12 +176,6 @@ def use_reduced(case: Case, conductors: list[Conductor], method: str = "auto") -
     if len(case.frequencies) < 4:
         return False
     return method == "reduced" or len(case.frequencies) > REDUCED_MIN_FREQUENCIES
-
-
-def conductor_resistivities(case: Case, conductors: list[Conductor]) -> np.ndarray:
-    """Resistivity (ohm*m) of every conductor at the case temperature."""
-    return np.array([material(case.winding(c.winding).material).resistivity(case.model.temperature_c)
-                     for c in conductors])
 
 
 def mesh_case(case: Case, conductors: list[Conductor]) -> WindowMesh:

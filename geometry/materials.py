@@ -47,3 +47,12 @@ def skin_depth(resistivity: float, frequency: float, mu_r: float = 1.0) -> float
     if frequency <= 0.0:
         return math.inf
     return math.sqrt(2.0 * resistivity / (2.0 * math.pi * frequency * MU0 * mu_r))
+
+
+def conductor_resistivities(case, conductors) -> "np.ndarray":
+    """Resistivity (ohm*m) of every placed conductor (``conductors``, of
+    :func:`racfield.geometry.layout.place`) at the case temperature."""
+    import numpy as np
+
+    return np.array([material(case.winding(c.winding).material).resistivity(case.model.temperature_c)
+                     for c in conductors])

@@ -174,7 +174,8 @@ class _Version(argparse.Action):
     def __call__(self, parser, namespace, values, option_string=None) -> None:
         import racfield
 
-        parser.exit(message=f"racfield {racfield.__version__}\n")
+        print(f"racfield {racfield.__version__}")
+        parser.exit()
 
 
 def parser() -> argparse.ArgumentParser:

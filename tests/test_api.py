@@ -98,7 +98,7 @@ def test_readme_example_progress_and_files(demo):
     assert ns["case"].frequencies == tuple(doc["frequencies_hz"])
     progress = re.findall(r"^solved (\d+)/(\d+) at ", ns["printed"], flags=re.M)
     assert progress[-1] == ("22", "22") and all(total == "22" for _, total in progress)
-    written = folder / "demo_transformer"
+    written = folder / "results" / "demo_transformer"
     # reference: the files racfield run wrote (its own state folder aside)
     assert sorted(p.name for p in written.iterdir()) == sorted(p.name for p in cli_out.iterdir()
                                                                if p.name != ".racfield")

@@ -15,13 +15,10 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
-from matplotlib import colormaps
-from matplotlib.ticker import EngFormatter, NullFormatter
 
 from racfield.geometry.case.names import folder_slug
+from racfield.geometry.case.units import format_frequency
 
-from .plotting import LINE_MAP, line_colours, new_figure, save
-from .report import format_frequency
 from .atomic import replace_text
 
 
@@ -98,6 +95,11 @@ def write_comparison(documents: list[tuple[str, dict]], directory: Path, wanted:
 
 def _ratio_plot(first: tuple[str, dict], table: list[VariantRow], windings: list[str], freqs: np.ndarray,
                 directory: Path) -> Path:
+    from matplotlib import colormaps   # here: the variants' folder names need no plotting
+    from matplotlib.ticker import EngFormatter, NullFormatter
+
+    from .plotting import LINE_MAP, line_colours, new_figure, save
+
     figure = new_figure(7.0, 2.6 + 2.4 * len(windings))
     colours = line_colours(len(table), colormaps[LINE_MAP])
     positive = freqs > 0
@@ -120,6 +122,10 @@ def _ratio_plot(first: tuple[str, dict], table: list[VariantRow], windings: list
 
 def _loss_bars(first: tuple[str, dict], table: list[VariantRow], windings: list[str], freqs: np.ndarray, at: int,
                directory: Path) -> Path:
+    from matplotlib import colormaps
+
+    from .plotting import LINE_MAP, line_colours, new_figure, save
+
     figure = new_figure(7.0, 4.0)
     ax = figure.add_subplot()
     colours = line_colours(len(windings), colormaps[LINE_MAP])

@@ -24,12 +24,15 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
-from racfield.fem.sweep import SweepResult
 from racfield.geometry.case import Case
 from racfield.geometry.case.units import format_frequency
+
+if TYPE_CHECKING:   # a type only: reading results needs no solver
+    from racfield.fem.sweep import SweepResult
 
 
 @dataclass

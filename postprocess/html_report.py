@@ -11,15 +11,15 @@ from __future__ import annotations
 
 import base64
 import html
-import json
 import math
 import re
 from pathlib import Path
 
 from racfield.geometry.case.errors import CaseError
+from racfield.geometry.case.units import format_frequency
 
+from . import results_file
 from .atomic import replace_text
-from .report import format_frequency
 from .validation_status import VALIDATION, case_features
 
 REPORT_NAME = "report.html"
@@ -180,26 +180,6 @@ def _table(head: list[str], rows: list[list[str]], numeric: set[int] = frozenset
 
 # ---------------------------------------------------------------------------
 # one results folder
-
-
-def _load(path: Path) -> dict:
-    try:
-        doc = json.loads(path.read_text(encoding="utf-8"))
-    except (OSError, ValueError) as error:
-        raise CaseError("", f"cannot read {path.name} ({error.__class__.__name__})",
-                        "give the folder written by racfield run", str(path)) from None
-    return doc
-
-
-def _check_results(doc: object, path: Path) -> dict:
-    try:
-        if not isinstance(doc, dict):
-            raise TypeError
-        doc["title"], doc["frequencies_hz"][0], doc["windings"].items()
-    except (KeyError, IndexError, TypeError, AttributeError):
-        raise CaseError("", "not a racfield results.json (title, frequencies and windings missing)",
-                        "give the folder written by racfield run", str(path)) from None
-    return doc
 
 
 def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
@@ -375,7 +355,7 @@ def _document(title: str, subtitle: str, page: _Page) -> str:
 
 
 def _single(folder: Path) -> str:
-    doc = _check_results(_load(folder / "results.json"), folder / "results.json")
+    doc = results_file.read(folder / "results.json")
     page = _Page()
     _folder_sections(page, doc, folder, "", 2)
     _validation(page, case_features(doc))
@@ -388,7 +368,7 @@ def _single(folder: Path) -> str:
 
 def _variants(folder: Path) -> str:
     path = folder / "comparison.json"
-    comparison = _load(path)
+    comparison = results_file.read_json(path)
     try:
         freqs = comparison["frequencies_hz"]
         compare = float(comparison["compare_frequency_hz"])
@@ -403,7 +383,7 @@ def _variants(folder: Path) -> str:
     for name, v in variants.items():
         sub = folder / str(v["folder"])
         if (sub / "results.json").exists() and sub.resolve().parent == folder.resolve():
-            documents[name] = _check_results(_load(sub / "results.json"), sub / "results.json")
+            documents[name] = results_file.read(sub / "results.json")
     title = _base_title(documents)
     page = _Page()
     page.heading(2, "comparison", f"Variants compared at {_freq(compare)}")

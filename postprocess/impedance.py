@@ -5,10 +5,14 @@ sweep results.  Impedances in ohm, inductances in H (whole turn length).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import numpy as np
 
 from racfield.fem.parallel import basis_impedance, sharing, winding_impedance
-from racfield.fem.sweep import SweepResult
+
+if TYPE_CHECKING:   # a type only: reading results needs no solver
+    from racfield.fem.sweep import SweepResult
 
 
 def winding_matrices(sweep: SweepResult, length: float) -> tuple[np.ndarray, np.ndarray]:

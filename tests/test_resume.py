@@ -191,7 +191,7 @@ def test_interrupt_leaves_a_partial_results_json_and_a_hint(tmp_path, capsys, mo
 
         return original(*args, on_point=hook, **kwargs)
 
-    monkeypatch.setattr("racfield.cli.run_sweep", interrupted)
+    monkeypatch.setattr(sweep_module, "run_sweep", interrupted)   # the sweep of racfield run's solve path
     case = _copy_case(DEMO, tmp_path)
     out = tmp_path / "out"
     assert main(["run", str(case), "--out", str(out), "--quiet", "--exact"]) == 130

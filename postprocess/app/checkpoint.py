@@ -18,14 +18,17 @@ import io
 import json
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
-from racfield.fem.sweep import PointResult
 from racfield.geometry.case import Case
 from racfield.geometry.case.errors import CaseError
 
 from racfield.postprocess.atomic import replace_bytes, replace_text
+
+if TYPE_CHECKING:   # the solver is imported where points are read, not for `racfield report`
+    from racfield.fem.sweep import PointResult
 
 STATE = ".racfield"
 MANIFEST = "manifest.json"
@@ -145,14 +148,16 @@ class RunState:
             for path in sorted(points.rglob("*"), reverse=True):
                 path.unlink() if path.is_file() else path.rmdir()
 
-    def save_point(self, key: str, index: int, point: PointResult) -> None:
+    def save_point(self, key: str, index: int, point: "PointResult") -> None:
         folder = self._points(key)
         folder.mkdir(parents=True, exist_ok=True)
         buffer = io.BytesIO()
         np.savez(buffer, **vars(point))
         replace_bytes(folder / f"{index:05d}.npz", buffer.getvalue())
 
-    def load_points(self, key: str) -> dict[int, PointResult]:
+    def load_points(self, key: str) -> dict[int, "PointResult"]:
+        from racfield.fem.sweep import PointResult
+
         out = {}
         folder = self._points(key)
         for path in sorted(folder.glob("[0-9]*.npz")) if folder.exists() else []:

@@ -19,13 +19,33 @@ import os
 import sys
 import time
 from dataclasses import dataclass
-from typing import Callable, Iterable
+from typing import TYPE_CHECKING, Callable, Iterable
 
-from threadpoolctl import threadpool_limits
-
-from racfield.fem.sweep import SweepResult, run_sweep
-from racfield.geometry.case import Case
+from racfield.geometry.case import Case, variant_cases
 from racfield.geometry.case.errors import CaseError
+from racfield.geometry.load import study_case
+from racfield.postprocess.comparison import folder_name
+
+if TYPE_CHECKING:   # the solver is imported by the functions that solve
+    from racfield.fem.sweep import SweepResult
+    from racfield.postprocess.report import Report
+
+
+def arrangements(case: Case) -> list[tuple[str, str | None, Case | None, str | None]]:
+    """(folder key, name, case or None, error line) of every arrangement: the
+    case alone, its [[variant]] arrangements, or its [study] points (a bad
+    point is kept with its error, to fail alone)."""
+    if case.study:
+        out = []
+        for point in case.study:
+            try:
+                out.append((folder_name(point.name), point.name, study_case(case, point), None))
+            except CaseError as error:
+                out.append((folder_name(point.name), point.name, None, error.line()))
+        return out
+    if case.variants:
+        return [(folder_name(a.variant), a.variant, a, None) for a in variant_cases(case)]
+    return [("", None, case, None)]
 
 
 @dataclass
@@ -43,38 +63,39 @@ class Outcome:
     by the worker), or (None) the error line of a refused or failed variant."""
 
     key: str
-    sweep: SweepResult | None
+    sweep: "SweepResult | None"
     error: str | None
     files: dict[str, bytes] | None = None
     mesh_check: dict | None = None
 
 
-def _render(case: Case, sweep: SweepResult, check_mesh: bool) -> tuple[dict[str, bytes], dict | None]:
+def _render(report: "Report") -> dict[str, bytes]:
     """The variant's result files as bytes (written to a private temporary
-    folder of the worker and read back) and its mesh check."""
+    folder of the worker and read back)."""
     import tempfile
     from pathlib import Path
 
-    from .mesh_check import mesh_check
-    from racfield.postprocess.report import build_report
     from racfield.postprocess.writers import write_all
 
-    report = build_report(case, sweep)
-    if check_mesh:
-        report.mesh_check = mesh_check(report)
     with tempfile.TemporaryDirectory(prefix="racfield-") as folder:
-        return {p.name: p.read_bytes() for p in write_all(report, Path(folder))}, report.mesh_check
+        return {p.name: p.read_bytes() for p in write_all(report, Path(folder))}
 
 
 def solve_job(case: Case, exact: bool, render: bool = False, check_mesh: bool = False):
     """Run in a worker: (sweep, files, mesh check, None) of one variant, or
     (None, None, None, its one-line error).  ``render``: also make the result
-    files there, so that the client only writes bytes."""
+    files there (and the mesh check, if asked for), so that the client only
+    writes bytes."""
+    from threadpoolctl import threadpool_limits
+
+    from .api import solve_report
+
     with threadpool_limits(limits=1):
         try:
-            sweep = run_sweep(case, method="exact" if exact else "auto")
-            files, checked = _render(case, sweep, check_mesh) if render else (None, None)
-            return sweep, files, checked, None
+            report = solve_report(case, exact=exact, check_mesh=check_mesh and render)
+            if not render:
+                return report.sweep, None, None, None
+            return report.sweep, _render(report), report.mesh_check, None
         except CaseError as error:
             return None, None, None, error.line()
         except Exception as error:  # a bug in one variant must not stop the others

@@ -1,6 +1,7 @@
 """Result files, one module per format behind a small registry.
 
-Each writer is a plain function ``write(report, directory) -> list[Path]``.
+Each writer is a plain function ``write(report, directory) -> list[Path]``;
+results.json is written (and read back) by :mod:`racfield.postprocess.results_file`.
 """
 
 from __future__ import annotations
@@ -8,14 +9,15 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Callable
 
+from .. import results_file
 from ..report import Report
 from . import (conductor_loss_plot, conductors_csv, estimates_csv, estimates_plot, field_plot, field_vtu,
-               geometry_plot, harmonics_csv, mmf_plot, rac_csv, rac_plot, results_json)
+               geometry_plot, harmonics_csv, mmf_plot, rac_csv, rac_plot)
 
 Writer = Callable[[Report, Path], list[Path]]
 
 WRITERS: dict[str, Writer] = {
-    "results.json": results_json.write,
+    "results.json": results_file.write,   # the module that also reads it back
     "rac.csv": rac_csv.write,
     "harmonics.csv": harmonics_csv.write,
     "conductors.csv": conductors_csv.write,

@@ -6,6 +6,7 @@ from pathlib import Path
 
 import numpy as np
 from matplotlib import colormaps
+from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.ticker import EngFormatter, NullFormatter
 
@@ -14,10 +15,18 @@ from ..report import Report
 
 
 def write(report: Report, directory: Path) -> list[Path]:
+    figure = rac_figure(report)
+    return [] if figure is None else [save(figure, directory / "rac_over_rdc.png")]
+
+
+def rac_figure(report: Report) -> Figure | None:
+    """The figure of rac_over_rdc.png: Rac/Rdc (1) of every winding, with the
+    1-D hand estimates dashed, against frequency in Hz on a log axis (None
+    when the sweep has no frequency above 0 Hz)."""
     freqs = np.asarray(report.sweep.frequencies)
     positive = freqs > 0
     if positive.sum() < 1:
-        return []
+        return None
     figure = new_figure()
     ax = figure.add_subplot()
     colours = line_colours(len(report.windings), colormaps[LINE_MAP])
@@ -54,4 +63,4 @@ def write(report: Report, directory: Path) -> list[Path]:
     handles += [Line2D([], [], color="0.35", linestyle=style, linewidth=1.0) for style, _ in styles.values()]
     labels += [f"{name} estimate (1-D; see the notes in results.json)" for _, name in styles.values()]
     ax.legend(handles, labels, frameon=False, fontsize=8)
-    return [save(figure, directory / "rac_over_rdc.png")]
+    return figure

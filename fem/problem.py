@@ -81,7 +81,11 @@ class WindowProblem:
     int A v: planar, dA/dn + A/R = 0, exact for the net-current and dipole
     parts of the outside field; axisymmetric, (1/R) d(R A)/dR = -A/R, exact
     for the dipole far field of a coil (A ~ R^-2).  A symmetry plane or the
-    axis carries A = 0.
+    axis carries A = 0.  A magnetic wall (``WindowMesh.wall_x``, mu ->
+    infinity) carries the natural condition dA/dn = 0: by the method of
+    images the half disk is then the mirror-symmetric full-disk problem with
+    every current doubled by its image, so the same far condition (exact for
+    that problem's net-current and dipole parts) holds on the half arc.
     """
 
     def __init__(self, window_mesh: WindowMesh, conductivity: np.ndarray,
@@ -128,21 +132,24 @@ class WindowProblem:
         return np.repeat(per_element[:, None], self.basis.X.shape[1], axis=1)
 
     def _far_basis(self) -> FacetBasis | None:
-        """The facets of the far circle or arc (None in a closed window); a
-        symmetry plane x = symmetry_x (A = 0) is not part of it."""
+        """The facets of the far circle or arc (None in a closed window); the
+        straight edge of a half disk (a symmetry plane x = symmetry_x, A = 0,
+        or a magnetic wall x = wall_x, dA/dn = 0) is not part of it."""
         window_mesh = self.window_mesh
         if window_mesh.far_radius is None:
             return None
         arc = self.mesh.boundary_facets()
-        if window_mesh.symmetry_x is not None:
-            gap = np.abs(self.mesh.p[0, self.mesh.facets[:, arc]] - window_mesh.symmetry_x).max(axis=0)
+        edge = window_mesh.symmetry_x if window_mesh.symmetry_x is not None else window_mesh.wall_x
+        if edge is not None:
+            gap = np.abs(self.mesh.p[0, self.mesh.facets[:, arc]] - edge).max(axis=0)
             arc = arc[gap >= 1e-9 * window_mesh.far_radius]
         return FacetBasis(self.mesh, ElementTriP2(), facets=arc)
 
     def _free_dofs(self) -> np.ndarray:
         """The unknowns: all DOFs but those of the symmetry plane (A = 0) or,
         in a closed window, one wall node (pinning A fixes its constant; exact
-        for ampere-turn-balanced currents, see README)."""
+        for ampere-turn-balanced currents, see README).  A magnetic wall
+        (``wall_x``) keeps its DOFs: dA/dn = 0 is the natural condition."""
         window_mesh = self.window_mesh
         xs = window_mesh.symmetry_x
         if window_mesh.far_radius is None:

@@ -333,7 +333,7 @@ def _snapshot(sweep: _Sweep, f: float, solution) -> FieldSnapshot:
     case, problem = sweep.case, sweep.problem
     column_currents = sweep.connection @ solution.currents
     mmf = None
-    if case.window.boundary != "open":
+    if not case.window.open_boundary:
         mmf = mmf_profile(problem, solution.potential, sweep.conductors, column_currents, case.window.width,
                           case.window.height, case.window.stacking == "across-width",
                           case.core.relative_permeability if case.core else 1.0)

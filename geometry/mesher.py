@@ -33,6 +33,9 @@ class WindowMesh:
     ``far_radius``/``far_centre``: the open-boundary circle (``None`` for
     a closed window).  ``symmetry_x``: with a core body, the x of the
     centre-leg symmetry plane, where A = 0 (``None`` otherwise).
+    ``wall_x``: with ``boundary = "open-wall"``, the x of the magnetic wall
+    (mu -> infinity, the window's inner wall x = 0), the far disk's straight
+    edge, where the natural condition dA/dn = 0 holds (``None`` otherwise).
     """
 
     points: np.ndarray
@@ -42,6 +45,7 @@ class WindowMesh:
     far_radius: float | None = None
     far_centre: tuple[float, float] | None = None
     symmetry_x: float | None = None
+    wall_x: float | None = None
 
     @property
     def nodes(self) -> int:
@@ -83,13 +87,15 @@ def _half_disk(occ, centre: tuple[float, float], radius: float) -> int:
 @dataclass(frozen=True)
 class _Domain:
     """The meshed domain's outer surface (OCC tag), the core body's surfaces
-    and the open boundary's far circle and symmetry plane (see WindowMesh)."""
+    and the open boundary's far circle, symmetry plane and magnetic wall (see
+    WindowMesh)."""
 
     surface: int
     core_tools: list[tuple[int, int]]
     far_radius: float | None = None
     far_centre: tuple[float, float] | None = None
     symmetry_x: float | None = None
+    wall_x: float | None = None
 
 
 def _conductor_tools(occ, conductors: list[Conductor]) -> list[tuple[int, int]]:
@@ -118,6 +124,13 @@ def _domain(occ, boundary: str, width: float, height: float, far_radius_factor: 
         far_centre = (axis_x, height / 2)
         far_radius = far_radius_factor * math.hypot(width - axis_x, height / 2)
         return _Domain(_half_disk(occ, far_centre, far_radius), [], far_radius, far_centre, axis_x)
+    if boundary == "open-wall":
+        if axis_x is not None:
+            raise ValueError('boundary "open-wall" is for planar models (no axis)')
+        # the far disk centred on the inner wall x = 0, cut there: the half on x >= 0
+        far_centre = (0.0, height / 2)
+        far_radius = far_radius_factor * math.hypot(width, height / 2)
+        return _Domain(_half_disk(occ, far_centre, far_radius), [], far_radius, far_centre, wall_x=0.0)
     if boundary == "open":
         far_centre = (width / 2, height / 2)
         far_radius = far_radius_factor * 0.5 * math.hypot(width, height)
@@ -273,10 +286,11 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
                sizing: MeshSizing, far_radius_factor: float = 5.0, core: Core | None = None,
                axis_x: float | None = None) -> WindowMesh:
     """Mesh the window (``boundary = "ideal-core"``: the window rectangle is the
-    domain), the air around the conductors out to a far circle (``"open"``), or
-    the half E-core body with air out to a far arc (``"core"``).  ``axis_x``:
-    an open domain is cut at this x (the axis of an axisymmetric model, where
-    A = 0) and becomes a half disk."""
+    domain), the air around the conductors out to a far circle (``"open"``),
+    the air on x >= 0 out to a far half circle centred on the inner wall x = 0,
+    a magnetic wall (``"open-wall"``), or the half E-core body with air out to
+    a far arc (``"core"``).  ``axis_x``: an open domain is cut at this x (the
+    axis of an axisymmetric model, where A = 0) and becomes a half disk."""
     gmsh.initialize(["-noenv"], readConfigFiles=False, interruptible=False)
     try:
         points, triangles, region, h_min, domain = _mesh_in_session(
@@ -288,7 +302,7 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
     renumber = np.full(points.shape[1], -1, dtype=np.int64)
     renumber[used] = np.arange(len(used))
     return WindowMesh(points[:, used], renumber[triangles], region, h_min, domain.far_radius, domain.far_centre,
-                      domain.symmetry_x)
+                      domain.symmetry_x, domain.wall_x)
 
 
 def _gap_corner_field(core: Core, width: float, height: float, h_max: float, sizing: MeshSizing) -> int:

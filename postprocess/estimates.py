@@ -428,7 +428,7 @@ def hand_estimates(case: Case, frequencies=None, ferreira_field: str = "mean-fie
     ``ferreira_field``: see :data:`FERREIRA_FIELDS`.
     """
     freqs = [float(f) for f in (case.frequencies if frequencies is None else frequencies)]
-    if case.window.boundary == "open":
+    if case.window.open_boundary:
         return _empty(case, freqs, "open boundary: no 1-D field")
     model = layer_model(case, conductors)
     out: dict = {method: {} for method in METHODS}

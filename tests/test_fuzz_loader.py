@@ -240,7 +240,9 @@ def valid_docs(draw):
 
     width = draw(st.floats(4 * MM, 20 * MM))
     height = draw(st.floats(4 * MM, 20 * MM))
-    boundary = draw(st.sampled_from(["open", "open", "core", "ideal-core"]))
+    # "open-wall" (air beside a magnetic wall) is for planar models only
+    boundary = draw(st.sampled_from(["open", "open", "core", "ideal-core"]
+                                    + (["open-wall"] if symmetry == "planar" else [])))
     window: dict = {"width": draw(st.sampled_from([width, f"{width / MM:.6g} mm"])),
                     "height": draw(st.sampled_from([height, f"{height / MM:.6g} mm"])),
                     "boundary": boundary}

@@ -12,7 +12,11 @@ from .study import StudyPoint
 from .waveform import Spectrum, Waveform, WaveformSettings
 
 SYMMETRIES = ("planar", "axisymmetric")
-BOUNDARIES = ("ideal-core", "open", "core")
+BOUNDARIES = ("ideal-core", "open", "open-wall", "core")
+#: the boundaries with air out to a far circle: no core around the window, so
+#: ampere-turns need not balance and self inductances are finite ("open-wall":
+#: the half plane x >= 0 beside a magnetic wall at x = 0, planar only)
+OPEN_BOUNDARIES = ("open", "open-wall")
 LEGS = ("centre", "outer")
 STACKINGS = ("across-width", "along-height")
 SHAPES = ("round", "rectangular", "foil", "litz")
@@ -50,13 +54,18 @@ class Model:
 class Window:
     width: float                  #: m, inner wall (x = 0) to outer wall
     height: float                 #: m, bottom (y = 0) to top
-    boundary: str = "ideal-core"
+    boundary: str = "ideal-core"  #: one of BOUNDARIES
     margin_inner: float = 0.0     #: m, keep-out at x = 0
     margin_outer: float = 0.0     #: m, keep-out at x = width
     margin_top: float = 0.0       #: m
     margin_bottom: float = 0.0    #: m
     stacking: str = "across-width"
     inner_radius: float | None = None  #: m, axisymmetric: radius of the inner wall (x = 0)
+
+    @property
+    def open_boundary(self) -> bool:
+        """Air out to a far circle, no core (see OPEN_BOUNDARIES)."""
+        return self.boundary in OPEN_BOUNDARIES
 
     def radius(self, x: float) -> float:
         """Radius in m of window coordinate ``x`` (axisymmetric models)."""

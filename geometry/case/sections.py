@@ -79,6 +79,9 @@ def read_frequencies(table: Table) -> tuple[float, ...]:
 def read_window(table: Table, model: Model) -> Window:
     width = table.quantity("width", "length", required=True, positive=True)
     boundary = table.text("boundary", "ideal-core", BOUNDARIES)
+    if boundary == "open-wall" and model.axisymmetric:
+        raise CaseError(table.key("boundary"), '"open-wall" (air beside a magnetic wall at x = 0) is for planar '
+                        "models only", 'set model.symmetry = "planar", or use window.boundary = "open"')
     inner_radius = _inner_radius(table, model, boundary)
     height = table.quantity("height", "length", required=True, positive=True)
     stacking = table.text("stacking", "across-width", STACKINGS)

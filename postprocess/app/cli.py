@@ -50,8 +50,9 @@ def _check_text(case: "Case") -> str:
 
     conductors = place(case)
     win = case.window
+    boundary = win.boundary + (" (air on x > 0 beside a magnetic wall at x = 0)" if win.boundary == "open-wall" else "")
     lines = [f"case: {case.title}",
-             f"window: {win.width * 1e3:.4g} mm x {win.height * 1e3:.4g} mm, {win.boundary}, "
+             f"window: {win.width * 1e3:.4g} mm x {win.height * 1e3:.4g} mm, {boundary}, "
              f"layers stacked {win.stacking}; {case.model.symmetry}"
              + (f", inner wall at r = {win.inner_radius * 1e3:.4g} mm, " if case.model.axisymmetric
                 else f", length {case.model.length * 1e3:.4g} mm, ") +

@@ -64,8 +64,12 @@ def write(report: Report, directory: Path) -> list[Path]:
     else:
         ax.add_patch(Rectangle((s_mm, 0), w_mm, h_mm, fill=False, edgecolor="0.5", linestyle=":", linewidth=0.8))
         pad = 0.15 * max(w_mm, h_mm)
-        # axisymmetric: from the axis (the mesh has no r < 0), also when the window starts there
-        ax.set_xlim(0.0 if report.case.model.axisymmetric else -pad, s_mm + w_mm + pad)
+        # axisymmetric: from the axis (the mesh has no r < 0), also when the window starts there;
+        # beside a magnetic wall the mesh has no x < 0 either
+        wall = window.boundary == "open-wall"
+        ax.set_xlim(0.0 if report.case.model.axisymmetric or wall else -pad, s_mm + w_mm + pad)
+        if wall:
+            ax.axvline(s_mm, color="0.4", linewidth=1.2, linestyle="-")
         ax.set_ylim(-pad, h_mm + pad)
     ax.set_aspect("equal")
     (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()

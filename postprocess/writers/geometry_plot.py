@@ -101,6 +101,11 @@ def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
         pad = 0.15 * max(w_mm, h_mm)
         ax.set_xlim(-0.3 * pad if show_axis else s_mm - pad, s_mm + w_mm + pad)
         ax.set_ylim(-pad, h_mm + pad)
+        if window.boundary == "open-wall":
+            # the magnetic wall x = 0 (e.g. the centre leg's face beside the end turns), air on x > 0 only
+            ax.add_patch(Rectangle((s_mm - pad, -pad), pad, h_mm + 2 * pad, facecolor=CORE_GREY,
+                                   edgecolor="none", zorder=0))
+            handles.append(Patch(facecolor=CORE_GREY, label="magnetic wall (\u03bcr \u2192 \u221e)"))
     margins = (window.margin_inner, window.margin_outer, window.margin_bottom, window.margin_top)
     if any(m > 0 for m in margins):
         inner, outer, bottom, top = (m * 1e3 for m in margins)

@@ -103,6 +103,18 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         '4e-5 %',
         applies_to=('open',)),
     ValidationCheck(
+        'Round wire 2a from a magnetic wall (`"open-wall"`), Rac/Rdc at radius/skin depth 1, 3, 10; DC inductance',
+        'the wire and its image, exact multipole solution (method of images, Binns, Lawrenson & Trowbridge, *The Analytical and Numerical Solution of Electric and Magnetic Fields*, 1992; addition theorem, DLMF 10.23.7, static limit; scipy.special)',
+        '0.2 %',
+        '0.015 % (L: 0.006 %)',
+        applies_to=('open',)),
+    ValidationCheck(
+        'Hairpin (go and return 3a apart) 2a from a magnetic wall, Rac/Rdc at radius/skin depth 1, 3, 10',
+        'four-wire multipole solution (two wires, two images)',
+        '0.2 %',
+        '0.010 %',
+        applies_to=('open',)),
+    ValidationCheck(
         "Ampere's law: line integral of H around a path through the centre leg, gap, yokes and outer leg = enclosed ampere-turns; and around turns inside the window",
         "Ampere's law",
         '0.5 %',

@@ -110,13 +110,48 @@ def _points(folder: Path) -> list[Path]:
     return sorted((folder / ".racfield" / "points").rglob("[0-9]*.npz"))
 
 
-def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
+def _count_solves(monkeypatch) -> list[tuple[float, bool]]:
+    """Record every frequency point the field problem solves: (Hz, whether it
+    came from a ready reduced-model response) per call of
+    ``WindowProblem.solve_windings``, the one function that solves a point."""
+    from racfield.fem.problem import WindowProblem
+
+    solved: list[tuple[float, bool]] = []
+    original = WindowProblem.solve_windings
+
+    def counting(self, frequency, *args, **kwargs):
+        solved.append((float(frequency), kwargs.get("response") is not None))
+        return original(self, frequency, *args, **kwargs)
+
+    monkeypatch.setattr(WindowProblem, "solve_windings", counting)
+    return solved
+
+
+def _sweeps(monkeypatch) -> list[str]:
+    """Record the title of every case whose sweep the command line runs."""
+    import racfield.cli as cli
+
+    titles: list[str] = []
+    original = cli.run_sweep
+
+    def counting(case, *args, **kwargs):
+        titles.append(case.title)
+        return original(case, *args, **kwargs)
+
+    monkeypatch.setattr(cli, "run_sweep", counting)
+    return titles
+
+
+def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, capsys, monkeypatch):
     """Kill `racfield run --exact` with SIGKILL after a few frequencies: the folder
-    holds a valid partial results.json; `--resume` solves only the missing
-    frequencies and the final files equal those of an uninterrupted run."""
+    holds a valid partial results.json; `--resume` (run here, through the same
+    command-line entry point, so that its solves can be counted) solves only
+    the missing frequencies and the final files equal those of an
+    uninterrupted run."""
     case = _copy_case(DEMO, tmp_path)
     killed, clean = tmp_path / "killed", tmp_path / "clean"
-    total = len(load_case(case).frequencies)
+    frequencies = [float(f) for f in load_case(case).frequencies]
+    total = len(frequencies)
     command = [sys.executable, "-m", "racfield", "run", str(case), "--exact", "--quiet"]
     process = subprocess.Popen(command + ["--out", str(killed)], cwd=ROOT,
                                stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
@@ -135,10 +170,16 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
     assert 1 <= partial["status"]["solved"] <= solved and partial["status"]["of"] == total
     assert len(partial["frequencies_hz"]) == partial["status"]["solved"]
 
-    resumed = subprocess.run(command + ["--out", str(killed), "--resume"], cwd=ROOT,
-                             capture_output=True, text=True, timeout=600)
-    assert resumed.returncode == 0, resumed.stderr
-    assert f"resuming: {solved} of {total} frequencies already solved" in resumed.stderr
+    kept = {int(path.stem) for path in _points(killed)}
+    assert len(kept) == solved
+    solves = _count_solves(monkeypatch)
+    capsys.readouterr()
+    assert main(["run", str(case), "--exact", "--quiet", "--out", str(killed), "--resume"]) == 0
+    assert f"resuming: {solved} of {total} frequencies already solved" in capsys.readouterr().err
+    # only the frequencies without a kept point were solved, each once, in order
+    # (the last one is never kept before the run ends: it is solved anyway)
+    assert total - 1 not in kept
+    assert solves == [(f, False) for i, f in enumerate(frequencies) if i not in kept]
     reference = subprocess.run(command + ["--out", str(clean)], cwd=ROOT, capture_output=True, text=True,
                                timeout=600)
     assert reference.returncode == 0, reference.stderr
@@ -148,7 +189,7 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
         assert (killed / name).read_bytes() == (clean / name).read_bytes(), name
 
 
-def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path):
+def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path, monkeypatch):
     """The reduced sweep rebuilds the same model on resume: points solved
     before the interruption plus the rest equal the uninterrupted sweep."""
     from racfield.geometry.case import variant_cases
@@ -167,7 +208,14 @@ def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path):
 
     with pytest.raises(Stop):
         run_sweep(case, on_point=stop_after_five)
+    assert len(kept) == 5 and len(case.frequencies) - 1 not in kept
+    solves = _count_solves(monkeypatch)
     resumed = run_sweep(case, done=kept)
+    # the reduced model answers only at the frequencies not kept (the last one
+    # included, for its field), then two full solves check the model
+    frequencies = [float(f) for f in case.frequencies]
+    assert [f for f, reduced in solves if reduced] == [f for i, f in enumerate(frequencies) if i not in kept]
+    assert [f for f, reduced in solves if not reduced] == resumed.sweep_info["check_hz"]
     for name in ("loss_per_m", "impedance_per_m", "loss_matrix_per_m", "basis_currents"):
         assert np.array_equal(getattr(resumed, name), getattr(clean, name)), name
     assert resumed.sweep_info == clean.sweep_info
@@ -252,7 +300,7 @@ def test_same_case_gives_bit_identical_results(tmp_path):
         assert (a / name).read_bytes() == (b / name).read_bytes(), name
 
 
-def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys):
+def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys, monkeypatch):
     """A study interrupted after some variants: --resume keeps the finished ones
     and the comparison equals the uninterrupted one."""
     case = _small_study(tmp_path)
@@ -264,9 +312,12 @@ def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys):
     unfinished = manifest["finished"].pop()
     manifest_path.write_text(json.dumps(manifest))
     capsys.readouterr()
-    assert main(["run", str(case), "--out", str(out), "--quiet", "--resume"]) == 0
+    sweeps = _sweeps(monkeypatch)
+    assert main(["run", str(case), "--out", str(out), "--quiet", "--resume", "--workers", "1"]) == 0
     err = capsys.readouterr().err
     assert err.count("finished before, kept") == len(manifest["finished"])
+    # one sweep, of the unfinished variant alone (variant folders are named after the variants)
+    assert len(sweeps) == 1 and sweeps[0].endswith(f"[{unfinished}]")
     assert (out / "comparison.json").read_text() == comparison
     assert unfinished in json.loads(manifest_path.read_text())["finished"]
 

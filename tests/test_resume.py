@@ -110,6 +110,13 @@ def _points(folder: Path) -> list[Path]:
     return sorted((folder / ".racfield" / "points").rglob("[0-9]*.npz"))
 
 
+def _stop(process: subprocess.Popen) -> None:
+    """End ``process`` (started by a test) if it still runs."""
+    if process.poll() is None:
+        process.kill()
+        process.wait()
+
+
 def _count_solves(monkeypatch) -> list[tuple[float, bool]]:
     """Record every frequency point the field problem solves: (Hz, whether it
     came from a ready reduced-model response) per call of
@@ -142,7 +149,7 @@ def _sweeps(monkeypatch) -> list[str]:
     return titles
 
 
-def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, capsys, monkeypatch):
+def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, capsys, monkeypatch, request):
     """Kill `racfield run --exact` with SIGKILL after a few frequencies: the folder
     holds a valid partial results.json; `--resume` (run here, through the same
     command-line entry point, so that its solves can be counted) solves only
@@ -153,6 +160,10 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, ca
     frequencies = [float(f) for f in load_case(case).frequencies]
     total = len(frequencies)
     command = [sys.executable, "-m", "racfield", "run", str(case), "--exact", "--quiet"]
+    # the uninterrupted reference run goes on beside the others (its own folder)
+    reference = subprocess.Popen(command + ["--out", str(clean)], cwd=ROOT,
+                                 stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    request.addfinalizer(lambda: _stop(reference))
     process = subprocess.Popen(command + ["--out", str(killed)], cwd=ROOT,
                                stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     deadline = time.monotonic() + 120.0
@@ -180,9 +191,8 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, ca
     # (the last one is never kept before the run ends: it is solved anyway)
     assert total - 1 not in kept
     assert solves == [(f, False) for i, f in enumerate(frequencies) if i not in kept]
-    reference = subprocess.run(command + ["--out", str(clean)], cwd=ROOT, capture_output=True, text=True,
-                               timeout=600)
-    assert reference.returncode == 0, reference.stderr
+    _, reference_err = reference.communicate(timeout=600)
+    assert reference.returncode == 0, reference_err
     assert _results(killed) == _results(clean)
     assert _results(killed)["status"]["complete"] is True
     for name in ("rac.csv", "conductors.csv", "estimates.csv"):
@@ -289,12 +299,19 @@ def test_a_file_racfield_did_not_write_is_not_overwritten(tmp_path, capsys):
     assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
 
 
-def test_same_case_gives_bit_identical_results(tmp_path):
-    """Two runs of one case: every number of results.json and every CSV byte equal."""
-    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", tmp_path)
+@pytest.fixture(scope="module")
+def two_runs(tmp_path_factory) -> tuple[Path, Path, Path]:
+    """Two finished runs of one case into two folders: (case file, folder a, folder b)."""
+    root = tmp_path_factory.mktemp("two_runs")
+    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", root)
     for name in ("a", "b"):
-        assert main(["run", str(case), "--out", str(tmp_path / name), "--quiet"]) == 0
-    a, b = tmp_path / "a", tmp_path / "b"
+        assert main(["run", str(case), "--out", str(root / name), "--quiet"]) == 0
+    return case, root / "a", root / "b"
+
+
+def test_same_case_gives_bit_identical_results(two_runs):
+    """Two runs of one case: every number of results.json and every CSV byte equal."""
+    _, a, b = two_runs
     assert _results(a) == _results(b)
     for name in ("rac.csv", "conductors.csv", "estimates.csv"):
         assert (a / name).read_bytes() == (b / name).read_bytes(), name
@@ -305,7 +322,8 @@ def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys, monkeypatc
     and the comparison equals the uninterrupted one."""
     case = _small_study(tmp_path)
     out = tmp_path / "out"
-    assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
+    # one variant after the other here (the local pool is tested in tests/test_study.py)
+    assert main(["run", str(case), "--out", str(out), "--quiet", "--workers", "1"]) == 0
     comparison = (out / "comparison.json").read_text()
     manifest_path = out / ".racfield" / "manifest.json"
     manifest = json.loads(manifest_path.read_text())
@@ -322,12 +340,12 @@ def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys, monkeypatc
     assert unfinished in json.loads(manifest_path.read_text())["finished"]
 
 
-def test_report_does_not_overwrite_a_foreign_file(tmp_path, capsys):
+def test_report_does_not_overwrite_a_foreign_file(two_runs, tmp_path, capsys):
     """`racfield report` refuses to replace a report.html racfield did not write
-    (exit 2, one line) and rewrites its own one; --force overrides."""
-    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", tmp_path)
-    out = tmp_path / "out"
-    assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
+    (exit 2, one line) and rewrites its own one; --force overrides.  (The
+    results folder is one of the two runs above; the report adds report.html
+    only, which the comparison of the two runs does not read.)"""
+    _, out, _ = two_runs
     assert main(["report", str(out)]) == 0
     assert main(["report", str(out)]) == 0                     # its own file
     foreign = tmp_path / "mine.html"

@@ -188,7 +188,8 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, ca
     assert main(["run", str(case), "--exact", "--quiet", "--out", str(killed), "--resume"]) == 0
     assert f"resuming: {solved} of {total} frequencies already solved" in capsys.readouterr().err
     # only the frequencies without a kept point were solved, each once, in order
-    # (the last one is never kept before the run ends: it is solved anyway)
+    # (the --resume contract, `racfield run --help`: "only the missing frequencies";
+    # the last one is never kept before the run ends: run_sweep solves it anyway)
     assert total - 1 not in kept
     assert solves == [(f, False) for i, f in enumerate(frequencies) if i not in kept]
     _, reference_err = reference.communicate(timeout=600)
@@ -222,7 +223,8 @@ def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path, mo
     solves = _count_solves(monkeypatch)
     resumed = run_sweep(case, done=kept)
     # the reduced model answers only at the frequencies not kept (the last one
-    # included, for its field), then two full solves check the model
+    # included, for its field), then two full solves check the model (the `done`
+    # contract of run_sweep: points already solved are taken as they are)
     frequencies = [float(f) for f in case.frequencies]
     assert [f for f, reduced in solves if reduced] == [f for i, f in enumerate(frequencies) if i not in kept]
     assert [f for f, reduced in solves if not reduced] == resumed.sweep_info["check_hz"]
@@ -334,7 +336,8 @@ def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys, monkeypatc
     assert main(["run", str(case), "--out", str(out), "--quiet", "--resume", "--workers", "1"]) == 0
     err = capsys.readouterr().err
     assert err.count("finished before, kept") == len(manifest["finished"])
-    # one sweep, of the unfinished variant alone (variant folders are named after the variants)
+    # one sweep, of the unfinished variant alone (the --resume contract, `racfield run
+    # --help`: "only the missing ... variants"; variant folders are named after the variants)
     assert len(sweeps) == 1 and sweeps[0].endswith(f"[{unfinished}]")
     assert (out / "comparison.json").read_text() == comparison
     assert unfinished in json.loads(manifest_path.read_text())["finished"]

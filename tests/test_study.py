@@ -440,6 +440,7 @@ def test_resume_solves_only_the_unfinished_variant(serial, tmp_path, capsys, mon
     assert main(["run", str(case), "--resume", "--workers", "2", "--quiet", "--out", str(out)]) == EXIT_OK
     printed = capsys.readouterr()
     # one pool of 2 worker processes, none of them this one, ran the one variant
+    # (`racfield run --help`: "--workers N: variants run in a local pool of N worker processes")
     assert len(pools) == 1
     workers = pools[0].values()
     assert len(workers) == 2 and len({pid for pid, _ in workers}) == 2

@@ -12,8 +12,6 @@ import numpy as np
 import pytest
 from scipy.special import jv
 
-from racfield.cli import main
-
 CASES = Path(__file__).resolve().parents[1] / "cases"
 
 # IEC 60028 (International Annealed Copper Standard): 1.7241e-8 ohm*m at 20 degC, 0.00393 /K
@@ -29,12 +27,15 @@ def _rho(temperature_c: float) -> float:
 
 
 @pytest.fixture(scope="module")
-def results(tmp_path_factory):
-    """Run each case once; map case name -> (results.json document, output folder)."""
+def results(case_run):
+    """Run each case once (through the command line, ``case_run`` of
+    tests/conftest.py: shared with the other tests of the same case files);
+    map case name -> (results.json document, output folder)."""
     out = {}
     for case in sorted(CASES.glob("*.toml")):
-        folder = tmp_path_factory.mktemp(case.stem)
-        assert main(["run", str(case), "--out", str(folder), "--quiet"]) == 0
+        run = case_run(case.stem)
+        assert run.status == 0
+        folder = run.folder
         if (folder / "comparison.json").exists():
             comparison = json.loads((folder / "comparison.json").read_text())
             for name, variant in comparison["variants"].items():

@@ -110,14 +110,60 @@ def _points(folder: Path) -> list[Path]:
     return sorted((folder / ".racfield" / "points").rglob("[0-9]*.npz"))
 
 
-def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
+def _stop(process: subprocess.Popen) -> None:
+    """End ``process`` (started by a test) if it still runs."""
+    if process.poll() is None:
+        process.kill()
+        process.wait()
+
+
+def _count_solves(monkeypatch) -> list[tuple[float, bool]]:
+    """Record every frequency point the field problem solves: (Hz, whether it
+    came from a ready reduced-model response) per call of
+    ``WindowProblem.solve_windings``, the one function that solves a point."""
+    from racfield.fem.problem import WindowProblem
+
+    solved: list[tuple[float, bool]] = []
+    original = WindowProblem.solve_windings
+
+    def counting(self, frequency, *args, **kwargs):
+        solved.append((float(frequency), kwargs.get("response") is not None))
+        return original(self, frequency, *args, **kwargs)
+
+    monkeypatch.setattr(WindowProblem, "solve_windings", counting)
+    return solved
+
+
+def _sweeps(monkeypatch) -> list[str]:
+    """Record the title of every case whose sweep the command line runs."""
+    from racfield.fem import sweep as sweep_module
+
+    titles: list[str] = []
+    original = sweep_module.run_sweep
+
+    def counting(case, *args, **kwargs):
+        titles.append(case.title)
+        return original(case, *args, **kwargs)
+
+    monkeypatch.setattr(sweep_module, "run_sweep", counting)   # the sweep of racfield run's solve path
+    return titles
+
+
+def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path, capsys, monkeypatch, request):
     """Kill `racfield run --exact` with SIGKILL after a few frequencies: the folder
-    holds a valid partial results.json; `--resume` solves only the missing
-    frequencies and the final files equal those of an uninterrupted run."""
+    holds a valid partial results.json; `--resume` (run here, through the same
+    command-line entry point, so that its solves can be counted) solves only
+    the missing frequencies and the final files equal those of an
+    uninterrupted run."""
     case = _copy_case(DEMO, tmp_path)
     killed, clean = tmp_path / "killed", tmp_path / "clean"
-    total = len(load_case(case).frequencies)
+    frequencies = [float(f) for f in load_case(case).frequencies]
+    total = len(frequencies)
     command = [sys.executable, "-m", "racfield", "run", str(case), "--exact", "--quiet"]
+    # the uninterrupted reference run goes on beside the others (its own folder)
+    reference = subprocess.Popen(command + ["--out", str(clean)], cwd=ROOT,
+                                 stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    request.addfinalizer(lambda: _stop(reference))
     process = subprocess.Popen(command + ["--out", str(killed)], cwd=ROOT,
                                stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     deadline = time.monotonic() + 120.0
@@ -135,20 +181,26 @@ def test_sigkill_mid_sweep_then_resume_matches_an_uninterrupted_run(tmp_path):
     assert 1 <= partial["status"]["solved"] <= solved and partial["status"]["of"] == total
     assert len(partial["frequencies_hz"]) == partial["status"]["solved"]
 
-    resumed = subprocess.run(command + ["--out", str(killed), "--resume"], cwd=ROOT,
-                             capture_output=True, text=True, timeout=600)
-    assert resumed.returncode == 0, resumed.stderr
-    assert f"resuming: {solved} of {total} frequencies already solved" in resumed.stderr
-    reference = subprocess.run(command + ["--out", str(clean)], cwd=ROOT, capture_output=True, text=True,
-                               timeout=600)
-    assert reference.returncode == 0, reference.stderr
+    kept = {int(path.stem) for path in _points(killed)}
+    assert len(kept) == solved
+    solves = _count_solves(monkeypatch)
+    capsys.readouterr()
+    assert main(["run", str(case), "--exact", "--quiet", "--out", str(killed), "--resume"]) == 0
+    assert f"resuming: {solved} of {total} frequencies already solved" in capsys.readouterr().err
+    # only the frequencies without a kept point were solved, each once, in order
+    # (the --resume contract, `racfield run --help`: "only the missing frequencies";
+    # the last one is never kept before the run ends: run_sweep solves it anyway)
+    assert total - 1 not in kept
+    assert solves == [(f, False) for i, f in enumerate(frequencies) if i not in kept]
+    _, reference_err = reference.communicate(timeout=600)
+    assert reference.returncode == 0, reference_err
     assert _results(killed) == _results(clean)
     assert _results(killed)["status"]["complete"] is True
     for name in ("rac.csv", "conductors.csv", "estimates.csv"):
         assert (killed / name).read_bytes() == (clean / name).read_bytes(), name
 
 
-def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path):
+def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path, monkeypatch):
     """The reduced sweep rebuilds the same model on resume: points solved
     before the interruption plus the rest equal the uninterrupted sweep."""
     from racfield.geometry.case import variant_cases
@@ -167,7 +219,15 @@ def test_reduced_sweep_resumed_from_part_of_its_points_is_identical(tmp_path):
 
     with pytest.raises(Stop):
         run_sweep(case, on_point=stop_after_five)
+    assert len(kept) == 5 and len(case.frequencies) - 1 not in kept
+    solves = _count_solves(monkeypatch)
     resumed = run_sweep(case, done=kept)
+    # the reduced model answers only at the frequencies not kept (the last one
+    # included, for its field), then two full solves check the model (the `done`
+    # contract of run_sweep: points already solved are taken as they are)
+    frequencies = [float(f) for f in case.frequencies]
+    assert [f for f, reduced in solves if reduced] == [f for i, f in enumerate(frequencies) if i not in kept]
+    assert [f for f, reduced in solves if not reduced] == resumed.sweep_info["check_hz"]
     for name in ("loss_per_m", "impedance_per_m", "loss_matrix_per_m", "basis_currents"):
         assert np.array_equal(getattr(resumed, name), getattr(clean, name)), name
     assert resumed.sweep_info == clean.sweep_info
@@ -241,42 +301,54 @@ def test_a_file_racfield_did_not_write_is_not_overwritten(tmp_path, capsys):
     assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
 
 
-def test_same_case_gives_bit_identical_results(tmp_path):
-    """Two runs of one case: every number of results.json and every CSV byte equal."""
-    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", tmp_path)
+@pytest.fixture(scope="module")
+def two_runs(tmp_path_factory) -> tuple[Path, Path, Path]:
+    """Two finished runs of one case into two folders: (case file, folder a, folder b)."""
+    root = tmp_path_factory.mktemp("two_runs")
+    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", root)
     for name in ("a", "b"):
-        assert main(["run", str(case), "--out", str(tmp_path / name), "--quiet"]) == 0
-    a, b = tmp_path / "a", tmp_path / "b"
+        assert main(["run", str(case), "--out", str(root / name), "--quiet"]) == 0
+    return case, root / "a", root / "b"
+
+
+def test_same_case_gives_bit_identical_results(two_runs):
+    """Two runs of one case: every number of results.json and every CSV byte equal."""
+    _, a, b = two_runs
     assert _results(a) == _results(b)
     for name in ("rac.csv", "conductors.csv", "estimates.csv"):
         assert (a / name).read_bytes() == (b / name).read_bytes(), name
 
 
-def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys):
+def test_resume_solves_only_the_unfinished_variants(tmp_path, capsys, monkeypatch):
     """A study interrupted after some variants: --resume keeps the finished ones
     and the comparison equals the uninterrupted one."""
     case = _small_study(tmp_path)
     out = tmp_path / "out"
-    assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
+    # one variant after the other here (the local pool is tested in tests/test_study.py)
+    assert main(["run", str(case), "--out", str(out), "--quiet", "--workers", "1"]) == 0
     comparison = (out / "comparison.json").read_text()
     manifest_path = out / ".racfield" / "manifest.json"
     manifest = json.loads(manifest_path.read_text())
     unfinished = manifest["finished"].pop()
     manifest_path.write_text(json.dumps(manifest))
     capsys.readouterr()
-    assert main(["run", str(case), "--out", str(out), "--quiet", "--resume"]) == 0
+    sweeps = _sweeps(monkeypatch)
+    assert main(["run", str(case), "--out", str(out), "--quiet", "--resume", "--workers", "1"]) == 0
     err = capsys.readouterr().err
     assert err.count("finished before, kept") == len(manifest["finished"])
+    # one sweep, of the unfinished variant alone (the --resume contract, `racfield run
+    # --help`: "only the missing ... variants"; variant folders are named after the variants)
+    assert len(sweeps) == 1 and sweeps[0].endswith(f"[{unfinished}]")
     assert (out / "comparison.json").read_text() == comparison
     assert unfinished in json.loads(manifest_path.read_text())["finished"]
 
 
-def test_report_does_not_overwrite_a_foreign_file(tmp_path, capsys):
+def test_report_does_not_overwrite_a_foreign_file(two_runs, tmp_path, capsys):
     """`racfield report` refuses to replace a report.html racfield did not write
-    (exit 2, one line) and rewrites its own one; --force overrides."""
-    case = _copy_case(ROOT / "cases" / "air_core_choke.toml", tmp_path)
-    out = tmp_path / "out"
-    assert main(["run", str(case), "--out", str(out), "--quiet"]) == 0
+    (exit 2, one line) and rewrites its own one; --force overrides.  (The
+    results folder is one of the two runs above; the report adds report.html
+    only, which the comparison of the two runs does not read.)"""
+    _, out, _ = two_runs
     assert main(["report", str(out)]) == 0
     assert main(["report", str(out)]) == 0                     # its own file
     foreign = tmp_path / "mine.html"

@@ -402,10 +402,30 @@ def test_an_unreachable_cluster_is_one_line(tmp_path, capsys, monkeypatch):
 # e. resume by variant
 
 
-def test_resume_solves_only_the_unfinished_variant(serial, tmp_path, capsys):
+def _record_pool_workers(monkeypatch) -> list[dict[str, tuple[int, int]]]:
+    """Before racfield closes its Dask client, record what every worker of the
+    pool reports: worker address -> (process id, tasks it executed), from the
+    Dask worker state (``executed_count``) of each worker process."""
+    import distributed
+
+    real = distributed.Client
+    reports: list[dict[str, tuple[int, int]]] = []
+
+    class Recording(real):
+        def close(self, *args, **kwargs):
+            if self.status == "running":
+                reports.append(self.run(lambda dask_worker: (os.getpid(), dask_worker.state.executed_count)))
+            return super().close(*args, **kwargs)
+
+    monkeypatch.setattr(distributed, "Client", Recording)
+    return reports
+
+
+def test_resume_solves_only_the_unfinished_variant(serial, tmp_path, capsys, monkeypatch):
     """A finished study with one variant marked unfinished: --resume solves that
-    one alone (in the default local pool) and its numbers and study.csv come
-    out as in the serial run, byte for byte."""
+    one alone, in a local pool of 2 worker processes (``--workers 2``, so that
+    a machine with one core starts a pool too), and its numbers and study.csv
+    come out as in the serial run, byte for byte."""
     case, reference = serial
     out = tmp_path / "resumed"
     shutil.copytree(reference, out)
@@ -416,8 +436,16 @@ def test_resume_solves_only_the_unfinished_variant(serial, tmp_path, capsys):
     manifest_path.write_text(json.dumps(manifest))
     before = {folder: (out / folder / "results.json").stat().st_mtime_ns for folder in FOLDERS}
     capsys.readouterr()
-    assert main(["run", str(case), "--resume", "--quiet", "--out", str(out)]) == EXIT_OK
+    pools = _record_pool_workers(monkeypatch)
+    assert main(["run", str(case), "--resume", "--workers", "2", "--quiet", "--out", str(out)]) == EXIT_OK
     printed = capsys.readouterr()
+    # one pool of 2 worker processes, none of them this one, ran the one variant
+    # (`racfield run --help`: "--workers N: variants run in a local pool of N worker processes")
+    assert len(pools) == 1
+    workers = pools[0].values()
+    assert len(workers) == 2 and len({pid for pid, _ in workers}) == 2
+    assert os.getpid() not in {pid for pid, _ in workers}
+    assert sum(executed for _, executed in workers) == 1
     assert printed.err.count("finished before, kept") == len(NAMES) - 1
     assert printed.out.count("== study test [") == 1                 # the one solved again
     assert f"== study test [{NAMES[3]}]\n" in printed.out

@@ -378,10 +378,11 @@ def test_bad_csv_line_is_named(tmp_path):
 # (f) the demo case
 
 
-def test_flyback_demo_case(tmp_path, capsys):
-    out = tmp_path / "flyback"
-    assert main(["run", str(CASES / "flyback_waveforms.toml"), "--out", str(out), "--quiet"]) == 0
-    printed = capsys.readouterr().out
+def test_flyback_demo_case(case_run):
+    # the run of tests/conftest.py, shared with tests/test_cases.py
+    run = case_run("flyback_waveforms")
+    assert run.status == 0
+    out, printed = run.folder, run.stdout
     assert "naive error" in printed and "loss by harmonic" in printed
     doc = json.loads((out / "results.json").read_text())
     h = doc["harmonics"]

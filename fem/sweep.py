@@ -81,6 +81,9 @@ class SweepResult:
     sweep_info: dict = field(default_factory=dict)
     #: numerical warnings, {"kind", "frequency_hz", "message"} each (see :mod:`fem.guards`)
     warnings: list[dict] = field(default_factory=list)
+    #: whole turns (:mod:`racfield.fem.whole_turns`): {"window": SweepResult, "end": SweepResult}
+    sections: dict | None = None
+    end_weights: np.ndarray | None = None   #: (Nc,) each conductor's share of its length in the end section
 
 
 @dataclass

@@ -21,6 +21,7 @@ from racfield.geometry.resistance import winding_dc_resistance
 
 from .estimates import hand_estimates
 from .harmonics import harmonic_losses, harmonics_document
+from .sections import sections_document
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
 CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
@@ -73,6 +74,11 @@ class Report:
         """The current waveforms' losses (None without waveforms; computed once)."""
         return harmonic_losses(self.case, self.sweep, self.loss_matrices,
                                {w.name: w.rdc_ohm for w in self.windings})
+
+    @cached_property
+    def sections(self) -> dict | None:
+        """Window, end-turn and whole-turn results side by side (None without [end_turns]; computed once)."""
+        return sections_document(self.case, self.sweep, self.windings)
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -144,6 +150,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         **({"mmf": m} if not partial and (m := mmf_document(report)) else {}),
         **({"parallel": par} if (par := parallel_document(report)) else {}),
         **({"harmonics": h} if not partial and (h := harmonics_document(report.harmonics)) else {}),
+        **({"sections": report.sections} if report.sections else {}),
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
         "warnings": [dict(w) for w in sweep.warnings],

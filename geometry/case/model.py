@@ -209,6 +209,16 @@ class Variant:
 
 
 @dataclass(frozen=True)
+class EndTurns:
+    """The part of every turn outside the core window (``[end_turns]``): in air
+    beside the centre leg's face (a magnetic wall), with no outer leg or yoke.
+    ``fraction``: its share of each turn's length; or ``length`` (m) per turn."""
+
+    fraction: float | None = None
+    length: float | None = None
+
+
+@dataclass(frozen=True)
 class Case:
     """A checked case.  ``notes``: remarks for the user that are not errors."""
 
@@ -232,6 +242,7 @@ class Case:
     study: tuple[StudyPoint, ...] = ()      #: [study] points (see geometry/study.py)
     source: dict | None = None              #: the case document without [study], for the study points
     allow_outside_files: bool = False       #: files it names may lie outside the case folder (study points too)
+    end_turns: "EndTurns | None" = None     #: the part of each turn outside the core (planar models)
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)

@@ -13,7 +13,7 @@ import numpy as np
 
 from .errors import CaseError
 from .names import check_name, check_unique, name_key
-from .model import (ALIGNS, BASE_VARIANT, BOUNDARIES, DEFAULT_PACKING, HEXAGONAL_PACKING, LEGS,
+from .model import (EndTurns, ALIGNS, BASE_VARIANT, BOUNDARIES, DEFAULT_PACKING, HEXAGONAL_PACKING, LEGS,
                     MAX_FREQUENCIES, REPRESENTATIONS, SHAPES, STACKINGS, SYMMETRIES, ConductorSpec, Core,
                     Gap, Layer, MeshOptions, Model, Parallel, PlacedConductor, Variant, Window, Winding)
 from .table import Table, list_of_tables, winding_ref
@@ -398,3 +398,30 @@ def read_mesh(table: Table) -> MeshOptions:
                       if table.has("frequency") else None)
     table.close()
     return MeshOptions(density, far, mesh_frequency)
+
+
+def read_end_turns(top: Table, model: Model) -> EndTurns | None:
+    """[end_turns]: ``fraction`` (0 to 1) of each turn's length outside the core, or ``length`` per turn."""
+    if not top.has("end_turns"):
+        top.raw("end_turns")
+        return None
+    table = Table(top.raw("end_turns"), "end_turns")
+    if model.axisymmetric:
+        raise CaseError("end_turns", "is for planar models only: an axisymmetric turn is a whole ring already",
+                        'remove [end_turns], or set model.symmetry = "planar"')
+    if table.has("fraction") == table.has("length"):
+        raise CaseError("end_turns.fraction", "give either fraction or length",
+                        "write fraction = 0.4 (the share of each turn outside the core) or length = \"20 mm\"")
+    if table.has("fraction"):
+        fraction = table.quantity("fraction", "number", required=True, nonnegative=True)
+        if fraction > 1.0:
+            raise CaseError("end_turns.fraction", f"{fraction:g} is more than 1",
+                            "give the share of each turn's length outside the core, 0 to 1")
+        table.close()
+        return EndTurns(fraction=fraction)
+    length = table.quantity("length", "length", required=True, nonnegative=True)
+    if length > model.length:
+        raise CaseError("end_turns.length", f"{length * 1e3:.4g} mm is longer than the turn "
+                        f"(model.length = {model.length * 1e3:.4g} mm)", "give the end-turn length of one turn")
+    table.close()
+    return EndTurns(length=length)

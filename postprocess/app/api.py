@@ -113,17 +113,17 @@ def solve_report(case: Case, *, exact: bool = False, progress: Progress | None =
     """The solve path of :func:`solve` and of ``racfield run``: the sweep of
     one arrangement and its report.  ``done`` and ``on_point``: the points
     already solved and the hook after each newly solved one (resumable runs,
-    see :func:`racfield.fem.sweep.run_sweep`)."""
+    see :func:`racfield.fem.whole_turns.run_case_sweep`)."""
     from threadpoolctl import threadpool_limits
 
-    from racfield.fem import sweep as fem_sweep
+    from racfield.fem.whole_turns import run_case_sweep
     from racfield.postprocess.report import build_report
 
     from .mesh_check import mesh_check
 
     # one BLAS thread, as in a worker of the pool: every way of running gives the same numbers
     with threadpool_limits(limits=1):
-        sweep = fem_sweep.run_sweep(case, progress=progress, method="exact" if exact else "auto",
+        sweep = run_case_sweep(case, progress=progress, method="exact" if exact else "auto",
                                     done=done, on_point=on_point)
         report = build_report(case, sweep)
         if check_mesh:

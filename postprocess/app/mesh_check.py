@@ -16,7 +16,7 @@ from dataclasses import replace
 
 import numpy as np
 
-from racfield.fem.sweep import run_sweep
+from racfield.fem.whole_turns import run_case_sweep
 
 from racfield.postprocess.report import Report, format_frequency, winding_results
 
@@ -36,7 +36,7 @@ def mesh_check(report: Report, refinement: float = REFINEMENT) -> dict:
     density = case.mesh.density
     refined_case = replace(case, frequencies=(frequency,),
                            mesh=replace(case.mesh, density=density * refinement, frequency=case.mesh_frequency))
-    refined = run_sweep(refined_case, method="exact")
+    refined = run_case_sweep(refined_case, method="exact")
     change = {}
     for normal, fine in zip(report.windings, winding_results(refined_case, refined)):
         rac, rac_fine = normal.rac_ohm[top], fine.rac_ohm[0]

@@ -60,6 +60,16 @@ def _summary_table(report) -> str:
             ratio = w.rac_over_rdc[i]
             cells.append(f"{'-' if ratio is None else f'{ratio:.4f}':>22} {w.loss_w[i]:>10.4g}")
         lines.append(f"{format_frequency(f):>12} " + " ".join(cells))
+    sections = report.sections
+    if sections:
+        lines.append(f"whole turns: {sections['end_share'] * 100:.3g} % of each turn's length in the end-turn section; "
+                     "Rac/Rdc window / end / whole:")
+        for i, f in enumerate(report.sweep.frequencies):
+            parts = []
+            for w in report.windings:
+                ratios = [sections[s]["windings"][w.name]["rac_over_rdc"][i] for s in ("window", "end", "whole")]
+                parts.append(f"{w.name[:14]} " + " / ".join("-" if r is None else f"{r:.4f}" for r in ratios))
+            lines.append(f"{format_frequency(f):>12}  " + "; ".join(parts))
     return "\n".join(lines)
 
 

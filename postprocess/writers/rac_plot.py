@@ -40,6 +40,10 @@ def rac_figure(report: Report) -> Figure | None:
         top = max(top, np.nanmax(ratio[positive]))
         ax.plot(freqs[positive], ratio[positive], color=colour, marker=markers[i % len(markers)],
                 markersize=4, linewidth=1.8, label=f"{w.name} ({w.turns} turns, Rdc {w.rdc_ohm * 1e3:.4g} m\u03a9)")
+        for part, style in (("window", (0, (5, 2, 1, 2))), ("end", (0, (3, 1, 1, 1, 1, 1)))) if report.sections else ():
+            values = report.sections[part]["windings"][w.name]["rac_over_rdc"]
+            section = np.array([np.nan if v is None else v for v in values], dtype=float)
+            ax.plot(freqs[positive], section[positive], color=colour, linestyle=style, linewidth=1.0)
         for method, (style, _) in styles.items():
             values = report.estimates.get(method, {}).get(w.name, {}).get("rac_over_rdc", [])
             estimate = np.array([np.nan if v is None else v for v in values], dtype=float)
@@ -62,5 +66,8 @@ def rac_figure(report: Report) -> Figure | None:
     handles, labels = ax.get_legend_handles_labels()
     handles += [Line2D([], [], color="0.35", linestyle=style, linewidth=1.0) for style, _ in styles.values()]
     labels += [f"{name} estimate (1-D; see the notes in results.json)" for _, name in styles.values()]
+    if report.sections:
+        handles += [Line2D([], [], color="0.35", linestyle=s, linewidth=1.0) for s in ((0, (5, 2, 1, 2)), (0, (3, 1, 1, 1, 1, 1)))]
+        labels += ["window section alone", "end-turn section alone (markers: whole turn)"]
     ax.legend(handles, labels, frameon=False, fontsize=8)
     return figure

@@ -91,9 +91,9 @@ def run_case_sweep(case: Case, progress: Callable[[int, int, float], None] | Non
     sweep keeps ``done``/``on_point`` for resuming; the end section is solved
     whole).  The result carries both sections in ``sections``."""
     if case.end_turns is None:
-        return single.run_sweep(case, progress, method, done, on_point)
-    window = single.run_sweep(window_section(case), progress, method, done, on_point)
-    end = single.run_sweep(end_section(case), None, method)
+        return single.run_sweep(case, progress=progress, method=method, done=done, on_point=on_point)
+    window = single.run_sweep(window_section(case), progress=progress, method=method, done=done, on_point=on_point)
+    end = single.run_sweep(end_section(case), method=method)
     lengths = np.full(len(window.conductors), case.model.length)
     currents = np.array([w.phasor for w in case.windings])
     whole = combine(window, end, end_weights(case, lengths), lengths, currents)

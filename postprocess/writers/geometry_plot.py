@@ -10,8 +10,10 @@ axisymmetric model is drawn at its true radius r = x + inner_radius.
 from __future__ import annotations
 
 from pathlib import Path
+from types import SimpleNamespace
 from typing import Sequence
 
+import numpy as np
 from matplotlib import colormaps
 from matplotlib.axes import Axes
 from matplotlib.collections import PatchCollection
@@ -19,6 +21,8 @@ from matplotlib.colors import to_rgb
 from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.patches import Circle, Patch, Rectangle
+
+from racfield.fem.whole_turns import end_section
 
 from ..plotting import LINE_MAP, line_colours, new_figure, save
 from ..report import Report
@@ -123,20 +127,9 @@ def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
     return handles
 
 
-def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool = True,
-                  legend: Sequence = ()) -> tuple[Figure, Axes]:
-    """The window with every conductor outlined and filled by ``faces`` (one
-    colour per conductor, in the order of ``report.sweep.conductors``); turn
-    numbers inside the conductors when ``numbers``, the count is small and
-    they fit (the title then says so).
-    ``legend``: extra handles (e.g. winding patches) before the wall entries."""
-    case = report.case
-    s_mm = case.window.inner_radius * 1e3 if case.model.axisymmetric else 0.0
-    figure = new_figure(6.5, 6.5)
-    figure.set_layout_engine("compressed")  # suits fixed-aspect axes
-    ax = figure.add_subplot()
-    ax.set_facecolor("white")
-    handles = list(legend) + _draw_walls(ax, report, s_mm)
+def _draw_conductors(ax: Axes, report: Report, faces: Sequence, s_mm: float, numbers: bool) -> bool:
+    """Every conductor outlined and filled by ``faces``; turn numbers inside when
+    ``numbers``, the count is small and they fit.  Returns whether any was numbered."""
     conductors = report.sweep.conductors
     patches = []
     for c in conductors:
@@ -147,33 +140,72 @@ def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool 
             patches.append(Rectangle((x - c.width / 2 * 1e3, y - c.height / 2 * 1e3), c.width * 1e3, c.height * 1e3))
     ax.add_collection(PatchCollection(patches, facecolors=list(faces), edgecolors="0.15", linewidths=0.6, zorder=3))
     ax.set_aspect("equal")
+    if not numbers or len(conductors) > TURN_NUMBER_LIMIT:
+        return False
     (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
-    figure.set_size_inches(6.5, min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + 1.4), 9.5))
+    figure = ax.get_figure()
+    # points per mm of the drawing (the axes take about 5 of the 6.5 inches, or the height limit)
+    panels = len(figure.axes)
+    scale = 72.0 * min(5.0 / panels / (x1 - x0), (figure.get_size_inches()[1] - 1.6) / (y1 - y0))
     numbered = False
-    if numbers and len(conductors) <= TURN_NUMBER_LIMIT:
-        # points per mm of the drawing (the axes take about 5 of the 6.5 inches, or the height limit)
-        scale = 72.0 * min(5.0 / (x1 - x0), (figure.get_size_inches()[1] - 1.6) / (y1 - y0))
-        for c, face in zip(conductors, faces):
-            upright = c.shape != "round" and c.height > 2.5 * c.width
-            across = (c.width if upright or c.shape == "round" else c.height) * 1e3 * scale
-            along = (c.height if upright else c.width) * 1e3 * scale
-            size = min(7.0, 0.7 * across, along / (0.65 * len(str(c.turn)) + 0.3))
-            if size >= 4.0:  # smaller numbers would not be readable: leave them out
-                numbered = True
-                ax.text(c.x * 1e3 + s_mm, c.y * 1e3, str(c.turn), ha="center", va="center", fontsize=size,
-                        rotation=90 if upright else 0, color=_text_colour(face), zorder=4)
-    if case.model.axisymmetric:
-        ax.set_xlabel("r, radius from the axis (mm)")
-        ax.set_ylabel("z, height above the window bottom (mm)")
-    else:
-        ax.set_xlabel("x, from the inner wall (mm)")
-        ax.set_ylabel("y, from the window bottom (mm)")
+    for c, face in zip(conductors, faces):
+        upright = c.shape != "round" and c.height > 2.5 * c.width
+        across = (c.width if upright or c.shape == "round" else c.height) * 1e3 * scale
+        along = (c.height if upright else c.width) * 1e3 * scale
+        size = min(7.0, 0.7 * across, along / (0.65 * len(str(c.turn)) + 0.3))
+        if size >= 4.0:  # smaller numbers would not be readable: leave them out
+            numbered = True
+            ax.text(c.x * 1e3 + s_mm, c.y * 1e3, str(c.turn), ha="center", va="center", fontsize=size,
+                    rotation=90 if upright else 0, color=_text_colour(face), zorder=4)
+    return numbered
+
+
+def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool = True,
+                  legend: Sequence = ()) -> tuple[Figure, Axes]:
+    """The window with every conductor outlined and filled by ``faces`` (one
+    colour per conductor, in the order of ``report.sweep.conductors``); turn
+    numbers inside the conductors when ``numbers``, the count is small and
+    they fit (the title then says so).  With ``[end_turns]`` the end-turn
+    section (the same turns beside the centre leg's face) is drawn beside it.
+    ``legend``: extra handles (e.g. winding patches) before the wall entries."""
+    case = report.case
+    s_mm = case.window.inner_radius * 1e3 if case.model.axisymmetric else 0.0
+    sections = [(case, "")]
+    if report.sweep.sections is not None:
+        sections = [(case, "window section"), (end_section(case), "end-turn section, "
+                     f"{float(np.mean(report.sweep.end_weights)) * 100:.3g} % of each turn's length")]
+    figure = new_figure(6.5 * len(sections), 6.5)
+    figure.set_layout_engine("compressed")  # suits fixed-aspect axes
+    handles = list(legend)
+    numbered = False
+    axes = []
+    for k, (section, label) in enumerate(sections):
+        ax = figure.add_subplot(1, len(sections), k + 1)
+        axes.append(ax)
+        ax.set_facecolor("white")
+        drawn = _draw_walls(ax, SimpleNamespace(case=section), s_mm)
+        handles += [h for h in drawn if h.get_label() not in [x.get_label() for x in handles]]
+        if k == 0:
+            (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+            figure.set_size_inches(6.5 * len(sections), min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + 1.4), 9.5))
+        numbered |= _draw_conductors(ax, report, faces, s_mm, numbers)
+        if case.model.axisymmetric:
+            ax.set_xlabel("r, radius from the axis (mm)")
+            ax.set_ylabel("z, height above the window bottom (mm)")
+        else:
+            ax.set_xlabel("x, from the inner wall (mm)")
+            ax.set_ylabel("y, from the window bottom (mm)")
+        if label:
+            ax.set_title(label, fontsize=8)
     if numbered:
         note = "numbers: turn within its winding"
         title += f"; {note}" if len(title.splitlines()[-1]) + len(note) < 80 else f"\n{note}"
-    ax.set_title(title, fontsize=9)
+    if len(sections) == 1:
+        axes[0].set_title(title, fontsize=9)
+    else:
+        figure.suptitle(title, fontsize=9)
     figure.legend(handles=handles, frameon=False, fontsize=7, loc="outside lower center", ncols=2)
-    return figure, ax
+    return figure, axes[0]
 
 
 def write(report: Report, directory: Path) -> list[Path]:

@@ -2,7 +2,7 @@
 import name, imports that flow one way (case -> layout and mesh -> fem ->
 postprocess -> the application layer), no import circles, short modules, and
 a docstring stating each package's job.  Common practice for a layered
-Python package; the limits (500 lines a module) are the project's own.
+Python package; the limits (500 lines a module, 80 a function) are the project's own.
 """
 
 from __future__ import annotations
@@ -22,6 +22,7 @@ FOLDERS = {"geometry": "racfield.geometry", "fem": "racfield.fem", "postprocess/
 #: layers from the bottom up: a module may import its own layer and those below it
 LAYERS = ["racfield.geometry.case", "racfield.geometry", "racfield.fem", "racfield.postprocess", "racfield"]
 MAX_LINES = 500
+MAX_FUNCTION_LINES = 80
 
 
 def module_name(path: Path) -> str:
@@ -143,6 +144,17 @@ def test_modules_are_short_and_packages_state_their_job():
         if path.name == "__init__.py":
             doc = ast.get_docstring(ast.parse(path.read_text(encoding="utf-8")))
             assert doc and len(doc) > 40, f"{path.relative_to(ROOT)} needs a docstring stating its job"
+
+
+def test_functions_are_short():
+    long = []
+    for name, path in sources().items():
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                lines = node.end_lineno - node.lineno + 1
+                if lines > MAX_FUNCTION_LINES:
+                    long.append(f"{path.relative_to(ROOT)}:{node.lineno} {node.name} ({lines} lines)")
+    assert not long, f"functions over {MAX_FUNCTION_LINES} lines: {long}"
 
 
 @pytest.mark.slow

@@ -19,13 +19,22 @@ How the per-turn lengths enter the results (:class:`TurnLengths`):
 
 - a conductor's loss and DC resistance are local to it: per-metre value
   times its own length l_c, exactly;
-- the conductor impedance matrix Z (ohm/m): conductor c's voltage is
-  V_c = l_c E_c with E_c = sum_d Z_cd i_d its field per metre; the matrix
-  l_c Z_cd is not symmetric, and its symmetric part, Z_cd (l_c + l_d) / 2,
-  is what is reported.  It keeps the real power and the stored energy
-  (1/2) sum_c l_c i_c psi_c exact for in-phase currents (i^T A i equals
-  i^T ((A + A^T)/2) i for any real i), and it is exact whenever the
-  conductors coupled have equal lengths.
+- the conductor impedance and inductance matrices Z, L (per metre): entry
+  (c, d) times sqrt(l_c l_d), i.e. D Z D with D = diag(sqrt(l_c)).  The
+  diagonal is each conductor's own l_c Z_cc, and it is exact whenever the
+  conductors coupled have equal lengths.  Being a congruence it keeps the
+  whole-turn matrices passive: i^H (D R D) i = (D i)^H R (D i) >= 0, so no
+  coupling coefficient exceeds 1 and the short-circuit (leakage) inductance
+  stays positive.  The symmetric part of the voltage model V_c = l_c E_c
+  (E_c = sum_d Z_cd i_d the field per metre), Z_cd (l_c + l_d) / 2, does not:
+  for the core flux that links every turn of a core window (a rank-one part
+  a u u^T of L) it gives L_12^2 / (L_11 L_22) = ((l_1 + l_2) / 2)^2 / (l_1 l_2)
+  > 1, and in the pot-core demo (cases/pot_core_planar.toml with a round
+  centre leg) a short-circuit inductance of -19 uH where the rings give
+  +2.35 uH.  The two rules differ by (l_c - l_d)^2 / (8 l) to second order.
+  Neither is the field's own weighting (the window's field energy lies
+  between the turns, (1/2) integral nu |B|^2 l(x) dA); leakage inductance
+  from per-turn lengths is an estimate of that order.
 
 Lengths are held as a scale times weights, so that a uniform length is the
 old arithmetic bit for bit: weights exactly 1 and scale ``model.length``
@@ -83,9 +92,10 @@ class TurnLengths:
 
     @property
     def pair_weights(self) -> np.ndarray:
-        """(Nc, Nc) (w_c + w_d) / 2: times ``scale``, the factor of the
+        """(Nc, Nc) sqrt(w_c w_d): times ``scale``, the factor of the
         conductor impedance matrix entry (c, d) (see the module doc)."""
-        return (self.weights[:, None] + self.weights[None, :]) / 2.0
+        root = np.sqrt(self.weights)
+        return root[:, None] * root[None, :]
 
     @property
     def uniform(self) -> bool:

@@ -22,8 +22,8 @@ def winding_matrices(sweep: SweepResult, lengths: TurnLengths) -> tuple[np.ndarr
     turns in series, parallel conductors sharing as the field decides
     (Z_w = (P^T Z_e^-1 P)^-1 with Z_e = E^T Z_c E, :mod:`fem.parallel`), with
     the conductor matrices Z_c and L_c (per metre) scaled to whole turns:
-    entry (c, d) times (l_c + l_d) / 2, the symmetric part of the voltage
-    model V_c = l_c E_c (see :mod:`racfield.geometry.turn_length`).  At 0 Hz,
+    entry (c, d) times sqrt(l_c l_d), which keeps them passive (see
+    :mod:`racfield.geometry.turn_length`).  At 0 Hz,
     L is the derivative of Z_w with respect to j omega: W P^T R^-1 L_e R^-1 P W
     with R = Z_e and W = Z_w at 0 Hz."""
     e, p = sweep.excitation.basis, sweep.excitation.windings

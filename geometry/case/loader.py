@@ -18,7 +18,7 @@ from .errors import CaseError, printable
 from .files import NotReadable, read_bytes
 from .model import Case, Winding, variant_cases
 from .names import check_name, check_text, check_unique
-from .sections import (check_leg_parallel, model_notes, plan_waveforms, read_compare, read_core, read_frequencies, read_layers,
+from .sections import (model_notes, plan_waveforms, read_compare, read_core, read_frequencies, read_layers,
                        read_mesh, read_model, read_parallels, read_placed, read_variants, read_waveform_settings,
                        read_window, read_winding_waveform)
 from ..materials import ALIASES, MATERIALS
@@ -87,7 +87,6 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     parallel = read_parallels(top, names)
 
     core, centre_leg = read_core(top, window, model)
-    check_leg_parallel(centre_leg, parallel)
 
     mesh = read_mesh(Table(top.raw("mesh", {}), "mesh"))
     top.close()

@@ -326,16 +326,6 @@ def read_centre_leg(core: Table, model: Model) -> CentreLeg | None:
     return leg
 
 
-def check_leg_parallel(leg: CentreLeg | None, parallels: list[Parallel]) -> None:
-    """Untransposed parallel conductors share their current by the field of
-    one per-metre cross-section: not yet with per-turn lengths (centre leg)."""
-    loose = [p for p in parallels if not p.transposed]
-    if leg is not None and loose:
-        raise CaseError(f"{loose[0].key}.transposed", "untransposed parallel conductors are not solved with "
-                        "per-turn lengths (core.centre_leg) yet", "set transposed = true, or give model.length "
-                        "instead of core.centre_leg")
-
-
 def model_notes(model: Model) -> tuple[str, ...]:
     if model.axisymmetric and model.length_given:
         return ("model.length is not used in an axisymmetric model: every turn has its true length 2*pi*r",)

@@ -257,6 +257,7 @@ class _Sweep:
     snapshot: FieldSnapshot | None = None
     #: D E (D = diag(sqrt(l_c)), turn lengths l_c) when parallel strands share by whole-turn impedances
     weighted: np.ndarray | None = None
+    mean_length: float = 1.0   #: the mean turn length's weight (see TurnLengths.mean)
 
     @property
     def connection(self) -> np.ndarray:
@@ -317,7 +318,7 @@ def _setup(case: Case) -> _Sweep:
     if not lengths.uniform and excitation.basis.shape[1] > len(case.windings):
         weighted = np.sqrt(lengths.weights)[:, None] * excitation.basis
     return _Sweep(case, conductors, rho, window_mesh, problem, excitation, winding_currents, currents, rdc,
-                  freqs, points, timings, info, weighted=weighted)
+                  freqs, points, timings, info, weighted=weighted, mean_length=lengths.mean)
 
 
 def _plan(sweep: _Sweep, method: str, start: float):
@@ -352,19 +353,21 @@ def _snapshot(sweep: _Sweep, f: float, solution) -> FieldSnapshot:
 
 def _solve(sweep: _Sweep, f: float, keep_field: bool = False, response=None):
     """The windings' solution at ``f`` Hz, untransposed parallel strands
-    sharing the current as the field decides.  With per-turn lengths
-    (:mod:`racfield.geometry.turn_length`) they share by the whole-turn
-    impedances (D E)^T Z (D E), D = diag(sqrt(l_c)): the problem is solved
-    for the columns [E, D E], the shares taken from the second block and the
-    currents given to the first, so that losses and field are those of the
-    conductor currents E x."""
+    sharing the current as the field decides.  With per-turn lengths they
+    share by the whole-turn impedances of
+    :meth:`racfield.geometry.turn_length.TurnLengths.impedance`: resistance
+    Re (D E)^T Z (D E), D = diag(sqrt(l_c)), reactance the mean turn length
+    times Im E^T Z E.  The problem is solved for the columns [E, D E], the
+    shares taken from both blocks and the currents given to the first, so
+    that losses and field are those of the conductor currents E x."""
     if sweep.weighted is None:
         return sweep.problem.solve_windings(f, sweep.connection, sweep.share, keep_field=keep_field,
                                             response=response)
     ne = sweep.connection.shape[1]
 
     def share(z_both: np.ndarray) -> np.ndarray:
-        return np.concatenate([sweep.share(z_both[ne:, ne:]), np.zeros(ne, dtype=complex)])
+        z_basis = z_both[ne:, ne:].real + 1j * sweep.mean_length * z_both[:ne, :ne].imag
+        return np.concatenate([sweep.share(z_basis), np.zeros(ne, dtype=complex)])
 
     both = np.hstack([sweep.connection, sweep.weighted])
     solution = sweep.problem.solve_windings(f, both, share, keep_field=keep_field, response=response)

@@ -19,26 +19,30 @@ How the per-turn lengths enter the results (:class:`TurnLengths`):
 
 - a conductor's loss and DC resistance are local to it: per-metre value
   times its own length l_c, exactly;
-- the conductor impedance and inductance matrices Z, L (per metre): entry
-  (c, d) times sqrt(l_c l_d), i.e. D Z D with D = diag(sqrt(l_c)).  The
-  diagonal is each conductor's own l_c Z_cc, and it is exact whenever the
-  conductors coupled have equal lengths.  Being a congruence it keeps the
-  whole-turn matrices passive: i^H (D R D) i = (D i)^H R (D i) >= 0, so no
-  coupling coefficient exceeds 1 and the short-circuit (leakage) inductance
-  stays positive.  The symmetric part of the voltage model V_c = l_c E_c
-  (E_c = sum_d Z_cd i_d the field per metre), Z_cd (l_c + l_d) / 2, does not:
-  for the core flux that links every turn of a core window (a rank-one part
-  a u u^T of L) it gives L_12^2 / (L_11 L_22) = ((l_1 + l_2) / 2)^2 / (l_1 l_2)
-  > 1, and in the pot-core demo (cases/pot_core_planar.toml with a round
-  centre leg) a short-circuit inductance of -19 uH where the rings give
-  +2.35 uH.  The two rules differ by (l_c - l_d)^2 / (8 l) to second order.
-  Neither is the field's own weighting (the window's field energy lies
-  between the turns, (1/2) integral nu |B|^2 l(x) dA); leakage inductance
-  from per-turn lengths is an estimate of that order.
+- the conductor resistance matrix R (ohm/m, the real part of Z): entry
+  (c, d) times sqrt(l_c l_d), i.e. D R D with D = diag(sqrt(l_c)).  The
+  diagonal is each conductor's own l_c R_cc (at DC the exact whole-turn
+  resistances, so parallel strands share by Kirchhoff's laws), and being a
+  congruence it keeps i^H (D R D) i = (D i)^H R (D i) >= 0: no current
+  pattern has negative loss;
+- the stored energy (the reactance X = Im Z and the inductance L) is not
+  held by the conductors but by the field, spread over the window and the
+  core: it is scaled by one length, the mean turn length of the winding
+  build (the turn at the middle of the conductors' span, common practice),
+  so that in a core window the core flux still links every turn alike and
+  in a closed (ideal-core) window the results do not depend on the
+  potential's arbitrary constant.  Scaling X per conductor breaks both: the
+  symmetric part of the voltage model V_c = l_c E_c, X_cd (l_c + l_d) / 2,
+  turns the rank-one core flux a u u^T into a matrix with coupling
+  L_12^2 / (L_11 L_22) = ((l_1 + l_2) / 2)^2 / (l_1 l_2) > 1 (the pot-core
+  demo with a round centre leg: short-circuit inductance -19 uH, the rings
+  +2.34 uH), and X_cd sqrt(l_c l_d) makes the ideal-core window's leakage
+  depend on that constant (+13 % there).  The field's own weighting,
+  (1/2) integral nu |B|^2 l(x) dA, would replace this mean.
 
 Lengths are held as a scale times weights, so that a uniform length is the
-old arithmetic bit for bit: weights exactly 1 and scale ``model.length``
-(with a centre leg: scale 1 and weights the lengths in m).
+old arithmetic bit for bit: weights and mean exactly 1 and scale
+``model.length`` (with a centre leg: scale 1, weights and mean in m).
 """
 
 from __future__ import annotations
@@ -78,11 +82,14 @@ def leg_turn_length(leg: CentreLeg, x: float) -> float:
 
 @dataclass(frozen=True)
 class TurnLengths:
-    """Per-conductor lengths as ``scale`` (m, or 1) times ``weights`` (Nc,).
-    Uniform lengths have weights exactly 1 (see the module doc)."""
+    """Per-conductor lengths as ``scale`` (m, or 1) times ``weights`` (Nc,);
+    ``mean`` times ``scale``: the mean turn length of the winding build (m,
+    the turn length at the middle of the conductors' span across the width).
+    Uniform lengths have weights and mean exactly 1 (see the module doc)."""
 
     scale: float
     weights: np.ndarray
+    mean: float = 1.0
 
     @property
     def metres(self) -> np.ndarray:
@@ -93,13 +100,31 @@ class TurnLengths:
     @property
     def pair_weights(self) -> np.ndarray:
         """(Nc, Nc) sqrt(w_c w_d): times ``scale``, the factor of the
-        conductor impedance matrix entry (c, d) (see the module doc)."""
+        conductor resistance matrix entry (c, d) (see the module doc)."""
         root = np.sqrt(self.weights)
         return root[:, None] * root[None, :]
 
+    def impedance(self, per_metre: np.ndarray) -> np.ndarray:
+        """Conductor impedance matrices (..., Nc, Nc) per metre to whole turns,
+        still to be multiplied by ``scale``: resistance R_cd sqrt(w_c w_d),
+        reactance X_cd times ``mean`` (see the module doc).  Uniform weights
+        leave the matrices as they are."""
+        if self.uniform:
+            return per_metre
+        out = np.empty(per_metre.shape, dtype=complex)
+        out.real = per_metre.real * self.pair_weights
+        out.imag = per_metre.imag * self.mean
+        return out
+
+    def inductance(self, per_metre: np.ndarray) -> np.ndarray:
+        """Conductor inductance matrices (..., Nc, Nc) per metre times ``mean``
+        (still to be multiplied by ``scale``)."""
+        return per_metre if self.uniform else per_metre * self.mean
+
     @property
     def uniform(self) -> bool:
-        return bool(np.all(self.weights == self.weights[0])) if len(self.weights) else True
+        """Every weight and the mean exactly 1: one length, ``scale``, for every turn."""
+        return self.mean == 1.0 and bool(np.all(self.weights == 1.0))
 
 
 def turn_lengths(case: Case, conductors: Sequence[Conductor]) -> TurnLengths:
@@ -111,7 +136,11 @@ def turn_lengths(case: Case, conductors: Sequence[Conductor]) -> TurnLengths:
         return TurnLengths(1.0, np.ones(n))
     if case.centre_leg is None:
         return TurnLengths(case.model.length, np.ones(n))
-    return TurnLengths(1.0, np.array([leg_turn_length(case.centre_leg, c.x) for c in conductors], dtype=float))
+    weights = np.array([leg_turn_length(case.centre_leg, c.x) for c in conductors], dtype=float)
+    if not n:
+        return TurnLengths(1.0, weights)
+    middle = (min(c.x - c.width / 2 for c in conductors) + max(c.x + c.width / 2 for c in conductors)) / 2
+    return TurnLengths(1.0, weights, leg_turn_length(case.centre_leg, middle))
 
 
 def describe(case: Case, conductors: Sequence[Conductor], uniform: str = "{} mm per turn") -> str:

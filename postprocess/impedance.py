@@ -21,15 +21,14 @@ def winding_matrices(sweep: SweepResult, lengths: TurnLengths) -> tuple[np.ndarr
     """Winding impedance Z (Nf, Nw, Nw) in ohm and inductance L (Nf, Nw, Nw) in H:
     turns in series, parallel conductors sharing as the field decides
     (Z_w = (P^T Z_e^-1 P)^-1 with Z_e = E^T Z_c E, :mod:`fem.parallel`), with
-    the conductor matrices Z_c and L_c (per metre) scaled to whole turns:
-    entry (c, d) times sqrt(l_c l_d), which keeps them passive (see
-    :mod:`racfield.geometry.turn_length`).  At 0 Hz,
+    the conductor matrices Z_c and L_c (per metre) scaled to whole turns by
+    :meth:`racfield.geometry.turn_length.TurnLengths.impedance` (resistance
+    per conductor pair, stored energy by the mean turn length).  At 0 Hz,
     L is the derivative of Z_w with respect to j omega: W P^T R^-1 L_e R^-1 P W
     with R = Z_e and W = Z_w at 0 Hz."""
     e, p = sweep.excitation.basis, sweep.excitation.windings
-    pair = lengths.pair_weights
-    z_e = basis_impedance(sweep.impedance_per_m * pair, e)
-    l_e = basis_impedance(sweep.inductance_per_m * pair, e)
+    z_e = basis_impedance(lengths.impedance(sweep.impedance_per_m), e)
+    l_e = basis_impedance(lengths.inductance(sweep.inductance_per_m), e)
     z = winding_impedance(z_e, p)
     l = np.empty(z.shape)
     for i, f in enumerate(sweep.frequencies):
@@ -101,7 +100,7 @@ def winding_loss_matrices(sweep: SweepResult, lengths: TurnLengths) -> np.ndarra
     e, p = sweep.excitation.basis, sweep.excitation.windings
     weighted = sweep.excitation.membership * lengths.weights[:, None]
     per_winding = np.einsum("kw,fkab->fwab", weighted, sweep.loss_matrix_per_m)
-    t = np.array([sharing(z_e, p) for z_e in basis_impedance(sweep.impedance_per_m * lengths.pair_weights, e)])
+    t = np.array([sharing(z_e, p) for z_e in basis_impedance(lengths.impedance(sweep.impedance_per_m), e)])
     return np.einsum("fai,fwab,fbj->fwij", t.conj(), per_winding, t) * lengths.scale
 
 

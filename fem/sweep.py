@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Callable
 
 import numpy as np
@@ -16,6 +16,7 @@ from racfield.geometry import resistance
 from racfield.geometry.layout import Conductor, place
 from racfield.geometry.mesher import WindowMesh, build_mesh
 from racfield.geometry.sizing import case_sizing
+from racfield.geometry.turn_length import turn_lengths
 
 from .guards import sweep_warnings
 from .mmf import MmfProfile, mmf_profile
@@ -257,6 +258,9 @@ class _Sweep:
     timings: dict
     sweep_info: dict
     snapshot: FieldSnapshot | None = None
+    #: D E (D = diag(sqrt(l_c)), turn lengths l_c) when parallel strands share by whole-turn impedances
+    weighted: np.ndarray | None = None
+    mean_length: float = 1.0   #: the mean turn length's weight (see TurnLengths.mean)
 
     @property
     def connection(self) -> np.ndarray:
@@ -312,8 +316,12 @@ def _setup(case: Case) -> _Sweep:
     freqs = np.array(case.frequencies)
     points = _Points.empty(len(freqs), len(conductors), excitation.basis.shape[1])
     info = {"method": "point-by-point", "expansion_hz": [], "max_check_deviation": None}
+    lengths = turn_lengths(case, conductors)
+    weighted = None
+    if not lengths.uniform and excitation.basis.shape[1] > len(case.windings):
+        weighted = np.sqrt(lengths.weights)[:, None] * excitation.basis
     return _Sweep(case, conductors, rho, window_mesh, problem, excitation, winding_currents, currents, rdc,
-                  freqs, points, timings, info)
+                  freqs, points, timings, info, weighted=weighted, mean_length=lengths.mean)
 
 
 def _plan(sweep: _Sweep, method: str, start: float):
@@ -321,7 +329,7 @@ def _plan(sweep: _Sweep, method: str, start: float):
     :func:`use_reduced`): (model, expansion indices, estimated change), or
     (None, [], None) for a point-by-point sweep.  ``start``: perf_counter of
     the solve phase, for the timing reduced_build_s."""
-    if not use_reduced(sweep.case, sweep.conductors, method):
+    if sweep.weighted is not None or not use_reduced(sweep.case, sweep.conductors, method):
         return None, [], None
     model, chosen, change = reduced_plan(sweep.problem, sweep.freqs, sweep.connection)
     sweep.sweep_info = {"method": "reduced", "expansion_hz": [float(sweep.freqs[i]) for i in sorted(chosen)],
@@ -346,13 +354,36 @@ def _snapshot(sweep: _Sweep, f: float, solution) -> FieldSnapshot:
                          mmf)
 
 
+def _solve(sweep: _Sweep, f: float, keep_field: bool = False, response=None):
+    """The windings' solution at ``f`` Hz, untransposed parallel strands
+    sharing the current as the field decides.  With per-turn lengths they
+    share by the whole-turn impedances of
+    :meth:`racfield.geometry.turn_length.TurnLengths.impedance`: resistance
+    Re (D E)^T Z (D E), D = diag(sqrt(l_c)), reactance the mean turn length
+    times Im E^T Z E.  The problem is solved for the columns [E, D E], the
+    shares taken from both blocks and the currents given to the first, so
+    that losses and field are those of the conductor currents E x."""
+    if sweep.weighted is None:
+        return sweep.problem.solve_windings(f, sweep.connection, sweep.share, keep_field=keep_field,
+                                            response=response)
+    ne = sweep.connection.shape[1]
+
+    def share(z_both: np.ndarray) -> np.ndarray:
+        z_basis = z_both[ne:, ne:].real + 1j * sweep.mean_length * z_both[:ne, :ne].imag
+        return np.concatenate([sweep.share(z_basis), np.zeros(ne, dtype=complex)])
+
+    both = np.hstack([sweep.connection, sweep.weighted])
+    solution = sweep.problem.solve_windings(f, both, share, keep_field=keep_field, response=response)
+    return replace(solution, loss_matrix_per_m=solution.loss_matrix_per_m[:, :ne, :ne],
+                   currents=solution.currents[:ne])
+
+
 def _solve_point(sweep: _Sweep, i: int, model, keep_field: bool) -> PointResult:
     """Solve frequency ``i`` (full solve, or from the reduced ``model``) and
     store it; ``keep_field``: also keep its field as the sweep's snapshot."""
     f = sweep.freqs[i]
     response = model.respond(2.0 * np.pi * f) if model is not None else None
-    solution = sweep.problem.solve_windings(f, sweep.connection, sweep.share, keep_field=keep_field,
-                                            response=response)
+    solution = _solve(sweep, f, keep_field, response)
     point = PointResult(solution.currents, solution.loss_per_m, solution.impedance_per_m,
                         solution.inductance_per_m, solution.loss_matrix_per_m,
                         math.nan if solution.residual is None else float(solution.residual))
@@ -402,7 +433,7 @@ def _self_check(sweep: _Sweep, chosen: list[int], change: np.ndarray) -> list[tu
     residuals = []
     deviation = 0.0
     for i in order:
-        full = sweep.problem.solve_windings(sweep.freqs[i], sweep.connection, sweep.share)
+        full = _solve(sweep, sweep.freqs[i])
         residuals.append((sweep.freqs[i], full.residual))
         deviation = _check_deviation(sweep, i, full, deviation)
     sweep.sweep_info["check_hz"] = [float(sweep.freqs[i]) for i in order]

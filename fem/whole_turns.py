@@ -32,6 +32,7 @@ from typing import Callable
 import numpy as np
 
 from racfield.geometry.case import Case
+from racfield.geometry.turn_length import TurnLengths, turn_lengths
 
 from .parallel import basis_impedance, sharing
 from . import sweep as single
@@ -58,12 +59,13 @@ def end_weights(case: Case, turn_lengths: np.ndarray) -> np.ndarray:
     return np.minimum(ends.length / turn_lengths, 1.0)
 
 
-def combine(window: SweepResult, end: SweepResult, weights: np.ndarray, turn_lengths: np.ndarray,
+def combine(window: SweepResult, end: SweepResult, weights: np.ndarray, turns: TurnLengths,
             winding_currents: np.ndarray) -> SweepResult:
     """The whole-turn sweep of ``window`` and ``end`` (same conductors and
     frequencies), ``weights`` (Nc,) the end-turn share of every conductor's
-    length, ``turn_lengths`` (Nc,) m, ``winding_currents`` (Nw,) A RMS."""
-    lengths = np.asarray(turn_lengths, dtype=float)
+    length, ``turns`` the turn lengths, ``winding_currents`` (Nw,) A RMS.
+    Parallel strands share current by the whole-turn impedance."""
+    lengths = turns.metres
     w = np.asarray(weights, dtype=float)
     pair = (w[:, None] * lengths[:, None] + w[None, :] * lengths[None, :]) / (lengths[:, None] + lengths[None, :])
     impedance = (1.0 - pair) * window.impedance_per_m + pair * end.impedance_per_m
@@ -71,7 +73,7 @@ def combine(window: SweepResult, end: SweepResult, weights: np.ndarray, turn_len
     loss_matrix = ((1.0 - w)[None, :, None, None] * window.loss_matrix_per_m
                    + w[None, :, None, None] * end.loss_matrix_per_m)
     excitation = window.excitation
-    shares = sharing(basis_impedance(impedance, window.connection), excitation.windings)   # (Nf, Ne, Nw)
+    shares = sharing(basis_impedance(turns.impedance(impedance), window.connection), excitation.windings)
     basis_currents = shares @ np.asarray(winding_currents, dtype=complex)
     loss = np.einsum("fa,fcab,fb->fc", basis_currents.conj(), loss_matrix, basis_currents).real
     timings = {k: window.timings.get(k, 0.0) + end.timings.get(k, 0.0) for k in window.timings}
@@ -94,7 +96,7 @@ def run_case_sweep(case: Case, progress: Callable[[int, int, float], None] | Non
         return single.run_sweep(case, progress=progress, method=method, done=done, on_point=on_point)
     window = single.run_sweep(window_section(case), progress=progress, method=method, done=done, on_point=on_point)
     end = single.run_sweep(end_section(case), method=method)
-    lengths = np.full(len(window.conductors), case.model.length)
-    currents = np.array([w.phasor for w in case.windings])
-    whole = combine(window, end, end_weights(case, lengths), lengths, currents)
-    return replace(whole, sections={"window": window, "end": end}, end_weights=end_weights(case, lengths))
+    turns = turn_lengths(case, window.conductors)
+    weights = end_weights(case, turns.metres)
+    whole = combine(window, end, weights, turns, np.array([w.phasor for w in case.windings]))
+    return replace(whole, sections={"window": window, "end": end}, end_weights=weights)

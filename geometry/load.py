@@ -10,6 +10,7 @@ from pathlib import Path
 from .case import Case, CaseError, StudyPoint, parse_case, point_case, read_document, variant_cases
 from .layout import place
 from .sizing import check_mesh_bound
+from .turn_length import turn_lengths
 
 
 def load_case(path: str | Path, allow_outside_files: bool = False) -> Case:
@@ -25,7 +26,9 @@ def checked_layout(case: Case) -> Case:
     mesh is within bounds (CaseError naming the case file otherwise)."""
     try:
         for arrangement in variant_cases(case):
-            check_mesh_bound(arrangement, place(arrangement))
+            conductors = place(arrangement)
+            check_end_turns(arrangement, conductors)
+            check_mesh_bound(arrangement, conductors)
     except CaseError as error:
         raise error.in_file(case.path) if case.path else error
     return case
@@ -35,3 +38,13 @@ def study_case(case: Case, point: StudyPoint) -> Case:
     """The case of one study point, its layout checked (CaseError, naming the
     file, if its document is bad)."""
     return checked_layout(point_case(case, point))
+
+
+def check_end_turns(case: Case, conductors: list) -> None:
+    """``[end_turns] length`` is at most the shortest turn's length."""
+    if case.end_turns is None or case.end_turns.length is None:
+        return
+    shortest = float(turn_lengths(case, conductors).metres.min())
+    if case.end_turns.length > shortest:
+        raise CaseError("end_turns.length", f"{case.end_turns.length * 1e3:.4g} mm is longer than the shortest "
+                        f"turn ({shortest * 1e3:.4g} mm)", "give the end-turn length of one turn, or a fraction")

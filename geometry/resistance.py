@@ -3,7 +3,9 @@
 One place for the number that ``check`` prints, ``run`` reports and the hand
 estimates weight their layers with.  Every conductor's resistance comes from
 its true geometry (:func:`.layout.dc_resistance`: rho / A per metre planar,
-the exact ring integral axisymmetric).  A winding's conductors are joined as
+the exact ring integral axisymmetric), and planar turns are scaled to whole
+turns by their lengths (:mod:`.turn_length`: model.length, or each turn's
+own length around the core's centre leg).  A winding's conductors are joined as
 the field solution joins them (:mod:`racfield.fem.parallel`):
 
 - one conductor per turn: the turns in series, R = sum R_k;
@@ -28,6 +30,7 @@ from collections.abc import Sequence
 from .case import Case, parallel_of
 from .layout import Conductor, dc_resistance
 from .materials import material
+from .turn_length import turn_lengths
 
 
 def conductor_resistivities(case: Case, conductors: Sequence[Conductor]) -> list[float]:
@@ -63,13 +66,35 @@ def dc_shares(case: Case, conductors: Sequence[Conductor], resistances: Sequence
     return shares
 
 
-def winding_dc_resistance(case: Case, conductors: Sequence[Conductor], name: str,
-                          resistances: Sequence[float] | None = None) -> float:
-    """DC resistance in ohm of winding ``name``, whole turns (planar: the
-    per-metre value times model.length).  ``resistances``: per conductor as
-    from :func:`conductor_resistances` (computed when not given)."""
+def weighted_resistances(case: Case, conductors: Sequence[Conductor],
+                         resistances: Sequence[float] | None = None) -> list[float]:
+    """Every conductor's resistance times its turn-length weight
+    (:func:`.turn_length.turn_lengths`): times the lengths' scale, its
+    whole-turn DC resistance in ohm.  ``resistances``: per metre (planar) or
+    per ring, as from :func:`conductor_resistances` (computed when not given).
+    Uniform turn lengths have weight 1: the per-metre values unchanged."""
     if resistances is None:
         resistances = conductor_resistances(case, conductors)
-    shares = dc_shares(case, conductors, resistances)
-    per_unit = sum(s * s * r for c, s, r in zip(conductors, shares, resistances) if c.winding == name)
-    return float(per_unit * case.model.result_scale)
+    weights = turn_lengths(case, conductors).weights
+    return [float(r * w) for r, w in zip(resistances, weights)]
+
+
+def turn_resistances(case: Case, conductors: Sequence[Conductor],
+                     resistances: Sequence[float] | None = None) -> list[float]:
+    """Whole-turn DC resistance in ohm of every conductor (planar: rho l_c / A
+    with the conductor's own turn length l_c; axisymmetric: the ring)."""
+    scale = turn_lengths(case, conductors).scale
+    return [r * scale for r in weighted_resistances(case, conductors, resistances)]
+
+
+def winding_dc_resistance(case: Case, conductors: Sequence[Conductor], name: str,
+                          resistances: Sequence[float] | None = None) -> float:
+    """DC resistance in ohm of winding ``name``, whole turns (planar: every
+    conductor's per-metre value times its turn length, see
+    :mod:`.turn_length`).  ``resistances``: per conductor as from
+    :func:`conductor_resistances` (computed when not given).  The DC shares
+    of parallel conductors follow from the whole-turn resistances."""
+    weighted = weighted_resistances(case, conductors, resistances)
+    shares = dc_shares(case, conductors, weighted)
+    per_unit = sum(s * s * r for c, s, r in zip(conductors, shares, weighted) if c.winding == name)
+    return float(per_unit * turn_lengths(case, conductors).scale)

@@ -59,7 +59,7 @@ from scipy.special import jve
 
 from racfield.geometry.case import Case
 from racfield.geometry.layout import Conductor, place
-from racfield.geometry.resistance import conductor_resistances, dc_shares
+from racfield.geometry.resistance import dc_shares, weighted_resistances
 from racfield.geometry.materials import MU0, material, skin_depth
 
 METHODS = ("dowell", "ferreira")
@@ -212,7 +212,8 @@ class LayerModel:
     along the layer / h_w (round: turns x d / h_w); ``fill`` = span of the turns
     along the layer / h_w; ``h_left``/``h_right`` RMS field phasors (A/m) at the
     faces toward and away from the reference wall; ``rdc`` (ohm/m planar, ohm
-    axisymmetric) the layer's part of its winding's Rdc, sum s_k^2 R_k over its
+    axisymmetric and planar with a centre leg: each turn its own length,
+    :func:`geometry.resistance.weighted_resistances`) the layer's part of its winding's Rdc, sum s_k^2 R_k over its
     conductors (s_k the DC share of the winding current, 1 without
     [[parallel]]); ``resistivity`` ohm*m.
     """
@@ -292,7 +293,7 @@ def layer_model(case: Case, conductors: list[Conductor] | None = None) -> LayerM
     h_w = _field_path(case)
     temperature = case.model.temperature_c
     # each conductor's DC resistance and share of its winding's current ([[parallel]] conductors)
-    resistances = conductor_resistances(case, conductors)
+    resistances = weighted_resistances(case, conductors)   # longer turns weigh more (centre leg)
     shares = dc_shares(case, conductors, resistances)
     notes: list[str] = []
     per_winding: dict[str, list[str]] = {w.name: [] for w in case.windings}

@@ -188,7 +188,9 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
     page.heading(level, f"{prefix}summary", "Case summary")
     axisymmetric = doc.get("symmetry") == "axisymmetric"
     length = ("true ring lengths (axisymmetric: every turn is a ring of length 2\u03c0r)" if axisymmetric
-              else eng(doc.get("length_m"), "m") + " per turn (planar cross-section scaled by it)")
+              else eng(doc.get("length_m"), "m") + " per turn (planar cross-section scaled by it)"
+              if doc.get("length_m") is not None else "each turn its own length around the centre leg "
+              "(planar cross-section scaled per turn)")
     listed = ", ".join(_freq(f) for f in freqs) if len(freqs) <= 12 else \
         f"{len(freqs)} from {_freq(freqs[0])} to {_freq(freqs[-1])}"
     items = [("Title", doc["title"]), ("Symmetry", doc.get("symmetry", "planar")),

@@ -1,6 +1,7 @@
 """Winding impedance matrix, short-circuit (leakage) impedance, magnetizing
 inductance and losses at any set of winding currents, from the per-conductor
-sweep results.  Impedances in ohm, inductances in H (whole turn length).
+sweep results.  Impedances in ohm, inductances in H (whole turns: every
+conductor scaled by its turn length, :mod:`racfield.geometry.turn_length`).
 """
 
 from __future__ import annotations
@@ -10,20 +11,24 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from racfield.fem.parallel import basis_impedance, sharing, winding_impedance
+from racfield.geometry.turn_length import TurnLengths
 
 if TYPE_CHECKING:   # a type only: reading results needs no solver
     from racfield.fem.sweep import SweepResult
 
 
-def winding_matrices(sweep: SweepResult, length: float) -> tuple[np.ndarray, np.ndarray]:
+def winding_matrices(sweep: SweepResult, lengths: TurnLengths) -> tuple[np.ndarray, np.ndarray]:
     """Winding impedance Z (Nf, Nw, Nw) in ohm and inductance L (Nf, Nw, Nw) in H:
     turns in series, parallel conductors sharing as the field decides
-    (Z_w = (P^T Z_e^-1 P)^-1 with Z_e = E^T Z_c E, :mod:`fem.parallel`), times
-    the turn length.  At 0 Hz, L is the derivative of Z_w with respect to
-    j omega: W P^T R^-1 L_e R^-1 P W with R = Z_e and W = Z_w at 0 Hz."""
+    (Z_w = (P^T Z_e^-1 P)^-1 with Z_e = E^T Z_c E, :mod:`fem.parallel`), with
+    the conductor matrices Z_c and L_c (per metre) scaled to whole turns by
+    :meth:`racfield.geometry.turn_length.TurnLengths.impedance` (resistance
+    per conductor pair, stored energy by the mean turn length).  At 0 Hz,
+    L is the derivative of Z_w with respect to j omega: W P^T R^-1 L_e R^-1 P W
+    with R = Z_e and W = Z_w at 0 Hz."""
     e, p = sweep.excitation.basis, sweep.excitation.windings
-    z_e = basis_impedance(sweep.impedance_per_m, e)
-    l_e = basis_impedance(sweep.inductance_per_m, e)
+    z_e = basis_impedance(lengths.impedance(sweep.impedance_per_m), e)
+    l_e = basis_impedance(lengths.inductance(sweep.inductance_per_m), e)
     z = winding_impedance(z_e, p)
     l = np.empty(z.shape)
     for i, f in enumerate(sweep.frequencies):
@@ -32,7 +37,7 @@ def winding_matrices(sweep: SweepResult, length: float) -> tuple[np.ndarray, np.
         else:
             left = np.linalg.solve(z_e[i], p) @ z[i]          # R^-1 P W
             l[i] = (left.T @ l_e[i] @ left).real
-    return z * length, l * length
+    return z * lengths.scale, l * lengths.scale
 
 
 def short_circuit(matrix: np.ndarray, turns: np.ndarray, balanced: bool) -> complex:
@@ -86,14 +91,17 @@ def magnetizing(l: np.ndarray, turns: np.ndarray) -> list[float]:
     return [float(x) for x in l[:, 0, 1] * turns[0] / turns[1]]
 
 
-def winding_loss_matrices(sweep: SweepResult, length: float) -> np.ndarray:
+def winding_loss_matrices(sweep: SweepResult, lengths: TurnLengths) -> np.ndarray:
     """Q (Nf, Nw, Nw, Nw): the loss of winding w at winding currents i is
-    Re(i^H Q[f, w] i) in W (A RMS phasors); parallel strands share as the
-    field decides (x = T i, :func:`fem.parallel.sharing`)."""
+    Re(i^H Q[f, w] i) in W (A RMS phasors); each conductor's loss (local to
+    it) times its own turn length; parallel strands share as the field
+    decides (x = T i, :func:`fem.parallel.sharing`, from the whole-turn
+    impedances of :func:`winding_matrices`)."""
     e, p = sweep.excitation.basis, sweep.excitation.windings
-    per_winding = np.einsum("kw,fkab->fwab", sweep.excitation.membership, sweep.loss_matrix_per_m)
-    t = np.array([sharing(z_e, p) for z_e in basis_impedance(sweep.impedance_per_m, e)])
-    return np.einsum("fai,fwab,fbj->fwij", t.conj(), per_winding, t) * length
+    weighted = sweep.excitation.membership * lengths.weights[:, None]
+    per_winding = np.einsum("kw,fkab->fwab", weighted, sweep.loss_matrix_per_m)
+    t = np.array([sharing(z_e, p) for z_e in basis_impedance(lengths.impedance(sweep.impedance_per_m), e)])
+    return np.einsum("fai,fwab,fbj->fwij", t.conj(), per_winding, t) * lengths.scale
 
 
 def losses_at(q: np.ndarray, currents: np.ndarray) -> np.ndarray:

@@ -18,6 +18,7 @@ from racfield.geometry.case import Case
 from racfield.geometry.case.units import format_frequency  # noqa: F401 (the writers' formatter)
 
 from racfield.geometry.resistance import winding_dc_resistance
+from racfield.geometry.turn_length import TurnLengths, turn_lengths
 
 from .estimates import hand_estimates
 from .harmonics import harmonic_losses, harmonics_document
@@ -65,9 +66,15 @@ class Report:
         return magnetic_document(self)
 
     @cached_property
+    def lengths(self) -> TurnLengths:
+        """Every conductor's factor to whole turns (its turn length, see
+        :mod:`racfield.geometry.turn_length`)."""
+        return turn_lengths(self.case, self.sweep.conductors)
+
+    @cached_property
     def loss_matrices(self) -> np.ndarray:
         """Winding loss matrices Q (Nf, Nw, Nw, Nw) in W/A^2 (computed once)."""
-        return winding_loss_matrices(self.sweep, self.case.model.result_scale)
+        return winding_loss_matrices(self.sweep, self.lengths)
 
     @cached_property
     def harmonics(self):
@@ -86,18 +93,23 @@ class Report:
 
     def conductor_loss_w(self) -> np.ndarray:
         """(Nf, Nc) loss of every conductor in W (whole turn length)."""
-        return self.sweep.loss_per_m * self.case.model.result_scale
+        return self.sweep.loss_per_m * self.lengths.metres
+
+    def conductor_rdc_ohm(self) -> np.ndarray:
+        """(Nc,) DC resistance of every conductor in ohm (whole turn length)."""
+        return self.sweep.rdc_per_m * self.lengths.metres
 
 
 def winding_results(case: Case, sweep: SweepResult) -> list[WindingResult]:
-    """Aggregate conductors into windings (turns in series)."""
-    length = case.model.result_scale
+    """Aggregate conductors into windings (turns in series), each conductor
+    scaled by its turn length (:mod:`racfield.geometry.turn_length`)."""
+    lengths = turn_lengths(case, sweep.conductors)
     results = []
     for n, w in enumerate(case.windings):
         idx = [c.index for c in sweep.conductors if c.winding == w.name]
         # turns in series, parallel conductors joined as in the field solution
         rdc = winding_dc_resistance(case, sweep.conductors, w.name, sweep.rdc_per_m)
-        loss = sweep.loss_per_m[:, idx].sum(axis=1) * length
+        loss = (sweep.loss_per_m[:, idx] * lengths.weights[idx]).sum(axis=1) * lengths.scale
         if w.current > 0.0:
             rac = [float(p / w.current ** 2) for p in loss]
             ratio = [r / rdc for r in rac]
@@ -120,6 +132,8 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
     points solved so far (a partial document: no field, MMF or harmonics)."""
     case, sweep = report.case, report.sweep
     conductor_loss = report.conductor_loss_w()
+    conductor_rdc = report.conductor_rdc_ohm()
+    per_turn = case.centre_leg is not None and not case.model.axisymmetric
     partial = solved_of is not None
     status = ({"complete": False, "solved": len(sweep.frequencies), "of": solved_of} if partial
               else {"complete": True, "solved": len(sweep.frequencies), "of": len(sweep.frequencies)})
@@ -128,7 +142,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         "title": case.title,
         "symmetry": case.model.symmetry,
         "temperature_c": case.model.temperature_c,
-        "length_m": None if case.model.axisymmetric else case.model.length,
+        "length_m": None if case.model.axisymmetric or per_turn else case.model.length,
         "frequencies_hz": [float(f) for f in sweep.frequencies],
         "windings": {
             w.name: {"turns": w.turns, "current_a_rms": w.current_a_rms, "phase_deg": w.phase_deg,
@@ -142,7 +156,8 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
             {"winding": c.winding, "turn": c.turn, "shape": c.shape, "x_m": c.x, "y_m": c.y,
              "width_m": c.width, "height_m": c.height,
              **({"r_m": case.window.radius(c.x)} if case.model.axisymmetric else {}),
-             "area_m2": c.copper_area, "rdc_ohm": float(sweep.rdc_per_m[c.index] * case.model.result_scale),
+             **({"length_m": float(report.lengths.metres[c.index])} if per_turn else {}),
+             "area_m2": c.copper_area, "rdc_ohm": float(conductor_rdc[c.index]),
              "loss_w": [float(p) for p in conductor_loss[:, c.index]]}
             for c in sweep.conductors
         ],
@@ -178,7 +193,7 @@ def magnetic_document(report: Report) -> dict:
     case, sweep = report.case, report.sweep
     names = sweep.winding_names
     turns = sweep.excitation.turns
-    z, l = winding_matrices(sweep, case.model.result_scale)
+    z, l = winding_matrices(sweep, report.lengths)
     closed = case.window.boundary == "ideal-core"
     doc: dict = {}
     if not closed:
@@ -212,12 +227,13 @@ def parallel_document(report: Report) -> dict:
             circulating = [0.0] * len(sweep.frequencies)
         else:
             shares = x[:, columns]
-            q = np.einsum("k,fkab->fab", exc.membership[:, w], sweep.loss_matrix_per_m)
+            weights = exc.membership[:, w] * report.lengths.weights   # each conductor its turn length
+            q = np.einsum("k,fkab->fab", weights, sweep.loss_matrix_per_m)
             equal = x.copy()
             equal[:, columns] = x[:, columns].sum(axis=1, keepdims=True) / len(columns)
             actual_loss = np.einsum("fa,fab,fb->f", x.conj(), q, x).real
             equal_loss = np.einsum("fa,fab,fb->f", equal.conj(), q, equal).real
-            circulating = ((actual_loss - equal_loss) * case.model.result_scale).tolist()
+            circulating = ((actual_loss - equal_loss) * report.lengths.scale).tolist()
         out[setting.winding] = {"conductors_per_turn": setting.conductors, "transposed": setting.transposed,
                                 "strand_current_a": np.abs(shares).tolist(),
                                 "strand_phase_deg": np.degrees(np.angle(shares)).tolist(),

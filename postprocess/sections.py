@@ -17,19 +17,20 @@ import numpy as np
 from racfield.fem.sweep import SweepResult
 from racfield.geometry.case import Case
 from racfield.geometry.resistance import winding_dc_resistance
+from racfield.geometry.turn_length import turn_lengths
 
 
 def section_windings(case: Case, sweep: SweepResult, share: np.ndarray) -> dict:
     """Per winding of one section ``sweep``: ``rac_over_rdc`` [per f] of the whole
     turn in this section and ``loss_w`` [per f] of the section's ``share`` (Nc,) of
     every turn's length (W)."""
-    length = case.model.result_scale
+    metres = turn_lengths(case, sweep.conductors).metres
     out = {}
     for w in case.windings:
         idx = [c.index for c in sweep.conductors if c.winding == w.name]
         rdc = winding_dc_resistance(case, sweep.conductors, w.name, sweep.rdc_per_m)
-        whole = sweep.loss_per_m[:, idx].sum(axis=1) * length
-        part = (sweep.loss_per_m[:, idx] * share[idx]).sum(axis=1) * length
+        whole = (sweep.loss_per_m[:, idx] * metres[idx]).sum(axis=1)
+        part = (sweep.loss_per_m[:, idx] * (metres * share)[idx]).sum(axis=1)
         ratio = [float(p / w.current ** 2 / rdc) if w.current > 0.0 else None for p in whole]
         out[w.name] = {"rac_over_rdc": ratio, "loss_w": [float(p) for p in part]}
     return out

@@ -23,6 +23,7 @@ import pytest
 from racfield.fem.sweep import run_sweep
 from racfield.geometry.case import parse_case
 from racfield.geometry.load import load_case
+from racfield.geometry.turn_length import turn_lengths
 from racfield.geometry.case.errors import CaseError
 from racfield.geometry.case.waveform import Waveform, sample, spectrum
 from racfield.cli import main
@@ -193,7 +194,7 @@ def test_dc_part_loses_idc_squared_rdc():
     assert error < 1e-9
     # the 0 Hz field solution agrees within its meshed conductor areas (README: 0.05 %)
     assert case.frequencies[0] == 0.0
-    q0 = winding_loss_matrices(sweep, case.model.result_scale)[0, 0, 0, 0].real
+    q0 = winding_loss_matrices(sweep, turn_lengths(case, sweep.conductors))[0, 0, 0, 0].real
     MEASURED["dc_loss_field_solution"] = abs(9.0 * q0 / w.dc_loss_w - 1.0)
     assert 9.0 * q0 == pytest.approx(w.dc_loss_w, rel=5e-4)
     # every harmonic loses at least |I_n|^2 Rdc: a given current through a

@@ -86,7 +86,7 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     compare_frequency = read_compare(top, frequencies)
     parallel = read_parallels(top, names)
 
-    core = read_core(top, window, model)
+    core, centre_leg = read_core(top, window, model)
     end_turns = read_end_turns(top, model)
 
     mesh = read_mesh(Table(top.raw("mesh", {}), "mesh"))
@@ -95,7 +95,7 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
                 mesh, path, core, model_notes(model) + wave_notes, tuple(variants), compare_frequency,
                 parallel=tuple(parallel), waveform=settings, allow_outside_files=allow_outside_files,
-                end_turns=end_turns)
+                centre_leg=centre_leg, end_turns=end_turns)
     for arrangement in variant_cases(case):
         check_arrangement(arrangement)
     return case

@@ -20,6 +20,7 @@ OPEN_BOUNDARIES = ("open", "open-wall")
 LEGS = ("centre", "outer")
 STACKINGS = ("across-width", "along-height")
 SHAPES = ("round", "rectangular", "foil", "litz")
+LEG_SHAPES = ("round", "rectangular")  #: core.centre_leg shapes
 REPRESENTATIONS = ("strands", "bundle")
 #: densest packing of equal circles in the plane (hexagonal), pi / (2 sqrt 3)
 HEXAGONAL_PACKING = math.pi / (2.0 * math.sqrt(3.0))
@@ -34,20 +35,18 @@ BASE_VARIANT = "base"  #: name of the case's own arrangement when it also lists 
 
 @dataclass(frozen=True)
 class Model:
+    """[model]; the factor to whole turns of every conductor (model.length,
+    or each turn's own length around a centre leg, or 1 for rings) is
+    :func:`racfield.geometry.turn_length.turn_lengths`."""
+
     symmetry: str = "planar"
-    length: float = 1.0          #: m, conductor length per turn (mean turn length); planar only
+    length: float = 1.0          #: m, conductor length per turn (mean turn length); planar without a centre leg
     temperature_c: float = 20.0  #: degC
     length_given: bool = False   #: the case file set model.length
 
     @property
     def axisymmetric(self) -> bool:
         return self.symmetry == "axisymmetric"
-
-    @property
-    def result_scale(self) -> float:
-        """Factor from the solver's values to whole turns: the turn length in m
-        for planar (per-metre solution), 1 for axisymmetric (per-turn solution)."""
-        return 1.0 if self.axisymmetric else self.length
 
 
 @dataclass(frozen=True)
@@ -178,6 +177,23 @@ class Core:
 
 
 @dataclass(frozen=True)
+class CentreLeg:
+    """The core's centre leg the turns are wound around (``[core] centre_leg``,
+    planar models): it gives every turn its own length (see
+    :mod:`racfield.geometry.turn_length`).  ``shape`` "round" (``diameter``)
+    or "rectangular" (``width`` x ``depth``, corners rounded to
+    ``corner_radius``); ``gap`` from the leg surface to the window's inner
+    wall x = 0 (the bobbin).  Sizes in m."""
+
+    shape: str
+    diameter: float = 0.0
+    width: float = 0.0
+    depth: float = 0.0
+    corner_radius: float = 0.0
+    gap: float = 0.0
+
+
+@dataclass(frozen=True)
 class MeshOptions:
     density: float = 1.0           #: >1 finer, <1 coarser than the default sizing
     far_radius_factor: float = 5.0  #: open boundary: far circle / window half-diagonal
@@ -242,6 +258,7 @@ class Case:
     study: tuple[StudyPoint, ...] = ()      #: [study] points (see geometry/study.py)
     source: dict | None = None              #: the case document without [study], for the study points
     allow_outside_files: bool = False       #: files it names may lie outside the case folder (study points too)
+    centre_leg: CentreLeg | None = None     #: [core] centre_leg: per-turn lengths (planar models)
     end_turns: "EndTurns | None" = None     #: the part of each turn outside the core (planar models)
 
     def winding(self, name: str) -> Winding:

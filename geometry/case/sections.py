@@ -13,8 +13,8 @@ import numpy as np
 
 from .errors import CaseError
 from .names import check_name, check_unique, name_key
-from .model import (EndTurns, ALIGNS, BASE_VARIANT, BOUNDARIES, DEFAULT_PACKING, HEXAGONAL_PACKING, LEGS,
-                    MAX_FREQUENCIES, REPRESENTATIONS, SHAPES, STACKINGS, SYMMETRIES, ConductorSpec, Core,
+from .model import (EndTurns, ALIGNS, BASE_VARIANT, BOUNDARIES, DEFAULT_PACKING, HEXAGONAL_PACKING, LEG_SHAPES, LEGS,
+                    MAX_FREQUENCIES, REPRESENTATIONS, SHAPES, STACKINGS, SYMMETRIES, CentreLeg, ConductorSpec, Core,
                     Gap, Layer, MeshOptions, Model, Parallel, PlacedConductor, Variant, Window, Winding)
 from .table import Table, list_of_tables, winding_ref
 from .units import LIMITS, in_range, quantity
@@ -243,17 +243,26 @@ def read_compare(top: Table, frequencies: tuple[float, ...]) -> float | None:
     return f
 
 
-def read_core(top: Table, window: Window, model: Model) -> Core | None:
-    """The [core] table and [[gap]] list; only with window.boundary = "core"."""
+def read_core(top: Table, window: Window, model: Model) -> tuple[Core | None, CentreLeg | None]:
+    """The [core] table and [[gap]] list (the core body: only with
+    window.boundary = "core"), and the centre leg the turns wind around
+    (``[core] centre_leg``, any boundary, planar models)."""
     gaps = list_of_tables(top, "gap")
     if window.boundary != "core":
-        if top.has("core") or gaps:
-            key = "core" if top.has("core") else "gap"
+        data = top.raw("core")
+        leg_only = isinstance(data, dict) and set(data) <= {"centre_leg"}
+        if (top.has("core") and not leg_only) or gaps:
+            key = "core" if top.has("core") and not leg_only else "gap"
             raise CaseError(key, f'a core body is given but window.boundary is "{window.boundary}"',
-                            'set window.boundary = "core" or remove the [core] table and [[gap]]s')
-        top.raw("core")
-        return None
+                            'set window.boundary = "core", or remove the [[gap]]s and keep only centre_leg in [core]')
+        if not top.has("core"):
+            return None, None
+        table = Table(data, "core")
+        leg = read_centre_leg(table, model)
+        table.close()
+        return None, leg
     table = Table(top.raw("core", None, required=True), "core")
+    centre_leg = read_centre_leg(table, model)
     mu_r = table.quantity("relative_permeability", "number", required=True)
     if not 1.0 <= mu_r <= 1e6:
         raise CaseError(table.key("relative_permeability"), f"{mu_r:g} is outside 1..1e6",
@@ -288,7 +297,36 @@ def read_core(top: Table, window: Window, model: Model) -> Core | None:
                 raise CaseError(t.key("at"), f"overlaps {other.key} on the {leg} leg",
                                 "space the gaps apart or merge them into one")
         parsed.append(Gap(leg, length, at, t.path))
-    return Core(mu_r, centre, outer, yoke, tuple(parsed))
+    return Core(mu_r, centre, outer, yoke, tuple(parsed)), centre_leg
+
+
+def read_centre_leg(core: Table, model: Model) -> CentreLeg | None:
+    """``[core] centre_leg = { shape, diameter | width, depth, corner_radius, gap }``
+    (sizes in m): planar models only, and instead of model.length."""
+    if not core.has("centre_leg"):
+        return None
+    table = Table(core.raw("centre_leg"), core.key("centre_leg"))
+    if model.axisymmetric:
+        raise CaseError(table.path, "is not used in an axisymmetric model",
+                        "remove it: every ring already has its true length 2*pi*r")
+    if model.length_given:
+        raise CaseError("model.length", "is given together with core.centre_leg, which sets every turn's length",
+                        "remove model.length (the turn lengths follow from the centre leg and the turn positions)")
+    shape = table.text("shape", None, LEG_SHAPES, required=True)
+    if shape == "round":
+        leg = CentreLeg(shape, diameter=table.quantity("diameter", "length", required=True, positive=True))
+    else:
+        width = table.quantity("width", "length", required=True, positive=True)
+        depth = table.quantity("depth", "length", required=True, positive=True)
+        corner = table.quantity("corner_radius", "length", 0.0, nonnegative=True)
+        if corner > min(width, depth) / 2.0 * (1.0 + 1e-12):
+            raise CaseError(table.key("corner_radius"), f"{corner * 1e3:.4g} mm is more than half the leg's "
+                            f"smaller side ({min(width, depth) * 1e3:.4g} mm)",
+                            "give a corner radius of at most min(width, depth) / 2")
+        leg = CentreLeg(shape, width=width, depth=depth, corner_radius=corner)
+    leg = replace(leg, gap=table.quantity("gap", "length", 0.0, nonnegative=True))
+    table.close()
+    return leg
 
 
 def model_notes(model: Model) -> tuple[str, ...]:
@@ -420,8 +458,5 @@ def read_end_turns(top: Table, model: Model) -> EndTurns | None:
         table.close()
         return EndTurns(fraction=fraction)
     length = table.quantity("length", "length", required=True, nonnegative=True)
-    if length > model.length:
-        raise CaseError("end_turns.length", f"{length * 1e3:.4g} mm is longer than the turn "
-                        f"(model.length = {model.length * 1e3:.4g} mm)", "give the end-turn length of one turn")
-    table.close()
+    table.close()   # at most each turn's length: checked with the layout (geometry/load.py)
     return EndTurns(length=length)

@@ -47,6 +47,7 @@ def _check_text(case: "Case") -> str:
     from racfield.geometry.layout import place
     from racfield.geometry.materials import material, skin_depth
     from racfield.geometry.resistance import conductor_resistances, winding_dc_resistance
+    from racfield.geometry.turn_length import describe
 
     conductors = place(case)
     win = case.window
@@ -55,7 +56,7 @@ def _check_text(case: "Case") -> str:
              f"window: {win.width * 1e3:.4g} mm x {win.height * 1e3:.4g} mm, {boundary}, "
              f"layers stacked {win.stacking}; {case.model.symmetry}"
              + (f", inner wall at r = {win.inner_radius * 1e3:.4g} mm, " if case.model.axisymmetric
-                else f", length {case.model.length * 1e3:.4g} mm, ") +
+                else f", {describe(case, conductors, 'length {} mm')}, ") +
              f"{case.model.temperature_c:g} degC"]
     copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")

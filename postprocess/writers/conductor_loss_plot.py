@@ -10,6 +10,8 @@ from matplotlib import colormaps
 from matplotlib.cm import ScalarMappable
 from matplotlib.colors import Normalize
 
+from racfield.geometry.turn_length import describe
+
 from ..plotting import FIELD_MAP, save
 from ..report import Report, format_frequency
 from .geometry_plot import window_figure
@@ -26,7 +28,7 @@ def write(report: Report, directory: Path) -> list[Path]:
     cmap = colormaps[FIELD_MAP]
     faces = [cmap(norm(p)) for p in loss]
     case = report.case
-    per = "whole rings" if case.model.axisymmetric else f"turn length {case.model.length * 1e3:.4g} mm"
+    per = "whole rings" if case.model.axisymmetric else describe(case, report.sweep.conductors, "turn length {} mm")
     frequency = format_frequency(float(report.sweep.frequencies[-1]))
     figure, ax = window_figure(report, faces, f"{case.title}\nloss of each turn at {frequency} ({per}); "
                                f"total {float(loss.sum()):.4g} W")

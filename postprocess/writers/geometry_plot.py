@@ -23,6 +23,7 @@ from matplotlib.lines import Line2D
 from matplotlib.patches import Circle, Patch, Rectangle
 
 from racfield.fem.whole_turns import end_section
+from racfield.geometry.turn_length import describe
 
 from ..plotting import LINE_MAP, line_colours, new_figure, save
 from ..report import Report
@@ -217,6 +218,6 @@ def write(report: Report, directory: Path) -> list[Path]:
               for w in report.windings]
     case = report.case
     scale = ("axisymmetric: every turn a ring" if case.model.axisymmetric
-             else f"planar cross-section, {case.model.length * 1e3:.4g} mm per turn")
+             else f"planar cross-section, {describe(case, report.sweep.conductors)}")
     figure, _ = window_figure(report, faces, f"{case.title}\n{scale}", legend=legend)
     return [save(figure, directory / "geometry.png")]

@@ -199,6 +199,36 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         '0.0005 % at r = 100 mm; innermost turn -1.2 %, -5.5 %, -17.7 %, -53 % at r = 100, 20, 5, 0.5 mm',
         applies_to=('axisymmetric',)),
     ValidationCheck(
+        "Round centre leg (`[core] centre_leg`): every planar turn's Rdc against its ring, 2 pi r rho / A; the 0 Hz field solution",
+        'IEC 60028; geometry',
+        '0.05 %',
+        '1e-12 (field solution within 0.05 %)',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Rectangular centre leg with rounded corners: winding Rdc against sum of rho (2(w + d) - (8 - 2 pi) r_c + 2 pi s) / A, from `run`, `check` and the 0 Hz field solution',
+        'mean-turn-length formula, common practice; IEC 60028',
+        '1e-12 (check: 5 digits)',
+        '< 1e-12',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Pot-core pair with a centre leg: planar per-turn Rdc against the axisymmetric rings',
+        'geometry (the rings)',
+        '1 %',
+        '+0.04 % (primary), +0.10 % (secondary)',
+        applies_to=('all',)),
+    ValidationCheck(
+        'Whole turns: `[end_turns] fraction = 0` against the window section alone; a window that is its own end section, any fraction',
+        "the combination rule's limits",
+        '1e-12',
+        '9e-15',
+        applies_to=('all',)),
+    ValidationCheck(
+        "Whole turns: stored energy against the length-weighted sum of the two sections' energies",
+        'additivity of the field energy over the turn length',
+        '1e-9',
+        '9e-15',
+        applies_to=('all',)),
+    ValidationCheck(
         'Axisymmetric pot core with a centre-post gap: inductance against the magnetic-circuit estimate (gap 0.1, 0.3, 1 mm)',
         'magnetic-circuit model, common practice',
         '-1 %',

@@ -237,6 +237,23 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
                      "only balanced (ampere-turn-free) currents exist.")
     for line in lines:
         page.add(f"<p>{esc(line)}</p>")
+    _whole_turns(page, doc, at)
+
+
+def _whole_turns(page: _Page, doc: dict, at: list[int]) -> None:
+    """With [end_turns]: Rac/Rdc of the window section, the end-turn section and the whole turn."""
+    sections = doc.get("sections")
+    if not sections:
+        return
+    freqs = doc["frequencies_hz"]
+    share = sections["end_share"] * 100
+    text = (f"Whole turns: {share:.3g} % of every turn in the end-turn section (air beside the centre leg); "
+            "Rac/Rdc of each section alone and of the whole turn.")
+    page.add(f"<p>{esc(text)}</p>")
+    rows = [[name, part] + [_ratio(_at(sections[part]["windings"][name]["rac_over_rdc"], i)) for i in at]
+            for name in doc["windings"] for part in ("window", "end", "whole")]
+    page.add(_table(["winding", "section"] + [f"Rac/Rdc at {_freq(freqs[i])}" for i in at], rows,
+                    numeric=set(range(2, 2 + len(at)))))
 
 
 def _estimates(page: _Page, doc: dict, folder: Path, prefix: str, level: int) -> None:

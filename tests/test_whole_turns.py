@@ -126,3 +126,15 @@ def test_the_table_is_checked():
     doc["end_turns"] = {"fraction": 0.3}
     with pytest.raises(CaseError, match="planar models only"):
         racfield.load_case(doc)
+
+
+def test_results_files_and_report_show_the_sections(with_end_turns, tmp_path):
+    # rac.csv and the HTML report carry the window, end-turn and whole-turn figures (README, Whole turns)
+    from racfield.postprocess.html_report import build_html
+
+    _, whole = with_end_turns
+    whole.write(tmp_path)
+    header = (tmp_path / "rac.csv").read_text().splitlines()[0].split(",")
+    assert header[-4:] == ["rac_over_rdc_window", "loss_window_w", "rac_over_rdc_end", "loss_end_w"]
+    page = build_html(tmp_path)
+    assert "Whole turns: 40 % of every turn" in page and ">end<" in page and ">whole<" in page

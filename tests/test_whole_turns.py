@@ -138,3 +138,37 @@ def test_results_files_and_report_show_the_sections(with_end_turns, tmp_path):
     assert header[-4:] == ["rac_over_rdc_window", "loss_window_w", "rac_over_rdc_end", "loss_end_w"]
     page = build_html(tmp_path)
     assert "Whole turns: 40 % of every turn" in page and ">end<" in page and ">whole<" in page
+
+
+def _case_file(name: str) -> dict:
+    import tomllib
+    from pathlib import Path
+
+    return tomllib.loads((Path(__file__).resolve().parents[1] / "cases" / f"{name}.toml").read_text())
+
+
+def test_waveforms_with_end_turns_add_by_length():
+    # the harmonic losses come from the combined loss matrices: with imposed currents the
+    # waveform loss of the whole turn is 0.7 x the window's + 0.3 x the end section's
+    # (the rule, harmonic by harmonic; README, Whole turns and Current waveforms)
+    doc = _case_file("flyback_waveforms")
+    doc["waveform"]["max_harmonic"] = 5
+    totals = {}
+    for label, table in (("window", None), ("whole", {"fraction": 0.3}), ("end", {"fraction": 1.0})):
+        d = copy.deepcopy(doc)
+        if table:
+            d["end_turns"] = table
+        totals[label] = racfield.solve(racfield.load_case(d)).document["harmonics"]["total_loss_w"]
+    assert totals["whole"] == pytest.approx(0.7 * totals["window"] + 0.3 * totals["end"], rel=1e-9)
+    assert totals["end"] != pytest.approx(totals["window"], rel=1e-3)
+
+
+def test_variants_with_end_turns_each_get_their_sections():
+    doc = _case_file("interleaving_study")
+    doc["sweep"] = {"frequencies": ["100 kHz"]}
+    doc["end_turns"] = {"fraction": 0.4}
+    case = racfield.load_case(doc)
+    for arrangement in racfield.variant_cases(case):
+        sections = racfield.solve(arrangement).document["sections"]
+        assert sections["end_share"] == pytest.approx(0.4)
+        assert set(sections["whole"]["windings"]) == {"primary", "secondary"}

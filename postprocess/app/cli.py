@@ -58,6 +58,11 @@ def _check_text(case: "Case") -> str:
              + (f", inner wall at r = {win.inner_radius * 1e3:.4g} mm, " if case.model.axisymmetric
                 else f", {describe(case, conductors, 'length {} mm')}, ") +
              f"{case.model.temperature_c:g} degC"]
+    ends = case.end_turns
+    if ends is not None:
+        share = f"{ends.fraction * 100:.3g} % of each turn" if ends.fraction is not None else \
+            f"{ends.length * 1e3:.4g} mm of each turn"
+        lines.append(f"end turns: {share} outside the core, solved as a second section beside the centre leg")
     copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
     lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")

@@ -62,11 +62,12 @@ def surface_edges(conductors: list[Conductor], sizing: MeshSizing) -> float:
 
 def check_mesh_bound(case: Case, conductors: list[Conductor]) -> None:
     """Refuse a case whose mesh would be far too large to solve (CaseError naming the keys that set it)."""
-    edges = surface_edges(conductors, case_sizing(case, conductors))
+    sizing = case_sizing(case, conductors)
+    edges = surface_edges(conductors, sizing)
     if edges > MAX_SURFACE_EDGES:
         source = ("mesh.frequency" if case.mesh.frequency is not None else
                   "waveform.max_harmonic" if case.waveform is not None else "sweep")
         raise CaseError(source, f"the mesh at {case.mesh_frequency:.4g} Hz (skin depth "
-                        f"{case_sizing(case, conductors).skin_depth * 1e6:.3g} um) would put about {edges:.3g} element "
+                        f"{sizing.skin_depth * 1e6:.3g} um) would put about {edges:.3g} element "
                         f"edges on the conductor surfaces, more than the {MAX_SURFACE_EDGES} this machine class can solve",
                         "lower the highest frequency or set [mesh] frequency lower, or a [mesh] density below 1")

@@ -214,7 +214,7 @@ def solve_temperature(window_mesh, conductivity: np.ndarray, heat: Heat, *,
     residual = load - matrix @ t
     out_fixed = np.array([residual[d].sum() for d in dofs])
     out_convective = np.array([
-        thermal_robin_heat(facet_basis, t, condition, weight) for facet_basis, condition in robins])
+        _convected_heat(facet_basis, t, condition, weight) for facet_basis, condition in robins])
     hot = int(np.argmax(t))
     region = np.asarray(window_mesh.region)
     return TemperatureField(
@@ -224,7 +224,7 @@ def solve_temperature(window_mesh, conductivity: np.ndarray, heat: Heat, *,
         heat_out_fixed=out_fixed, heat_out_convective=out_convective)
 
 
-def thermal_robin_heat(facet_basis: FacetBasis, t: np.ndarray, condition: Convection, weight: dict) -> float:
+def _convected_heat(facet_basis: FacetBasis, t: np.ndarray, condition: Convection, weight: dict) -> float:
     """int h (T - T_amb) dA (W/m or W): the heat a convective boundary carries off."""
     rise = facet_basis.interpolate(t - condition.ambient)
     return float(condition.h * volume_weight.assemble(facet_basis, f=rise, **weight))

@@ -64,7 +64,7 @@ class TemperatureField:
     ``conductor_mean`` (Nc,) degC, the area- (axisymmetric: volume-)
     weighted mean over each conductor region (NaN for a region without
     elements); ``hot_spot`` degC and ``hot_spot_at`` (x, y) m, the largest
-    nodal temperature; ``heat_generated`` int q dV; ``heat_out_fixed`` (one
+    nodal temperature (P2 nodes: corners and edge midpoints); ``heat_generated`` int q dV; ``heat_out_fixed`` (one
     per fixed condition) and ``heat_out_convective`` (one per convective
     condition), the heat leaving through each boundary; all heats in W/m
     (planar) or W (axisymmetric).
@@ -111,7 +111,10 @@ def _facets(basis: Basis, where: Where | None) -> np.ndarray:
     if where is None:
         return facets
     midpoints = mesh.p[:, mesh.facets[:, facets]].mean(axis=1)
-    return facets[np.asarray(where(midpoints), dtype=bool)]
+    chosen = facets[np.asarray(where(midpoints), dtype=bool)]
+    if len(chosen) == 0:
+        raise ValueError("a thermal boundary condition selects no boundary facet; check its 'where'")
+    return chosen
 
 
 def _heat_at_quadrature(basis: Basis, heat: Heat) -> np.ndarray:
@@ -121,8 +124,11 @@ def _heat_at_quadrature(basis: Basis, heat: Heat) -> np.ndarray:
         x = np.asarray(basis.global_coordinates())
         return np.broadcast_to(np.asarray(heat(x), dtype=float), (basis.nelems, shape))
     heat = np.asarray(heat, dtype=float)
-    if heat.ndim == 1:
+    if heat.shape == (basis.nelems,):
         return np.repeat(heat[:, None], shape, axis=1)
+    if heat.shape != (basis.nelems, shape):
+        raise ValueError(f"heat needs W/m^3 per element ({basis.nelems},) or per quadrature point "
+                         f"({basis.nelems}, {shape}), not {heat.shape}")
     return heat
 
 
@@ -205,6 +211,9 @@ def solve_temperature(window_mesh, conductivity: np.ndarray, heat: Heat, *,
     if not fixed and not convective:
         raise ValueError("an adiabatic domain has no steady temperature: fix T or add convection")
     basis = _basis(window_mesh)
+    conductivity = np.asarray(conductivity, dtype=float)
+    if conductivity.shape != (basis.nelems,) or not np.all(conductivity > 0) or not np.isfinite(conductivity).all():
+        raise ValueError(f"conductivity needs one positive W/(m K) value per element ({basis.nelems})")
     weight = _weight(radius_offset)
     q = _heat_at_quadrature(basis, heat)
     matrix, load, robins = _assemble(basis, conductivity, q, convective, weight)

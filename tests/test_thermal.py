@@ -204,3 +204,19 @@ def test_needs_a_thermal_boundary():
     mesh = _p2_mesh(MeshTri.init_tensor(np.linspace(0, 1, 3), np.linspace(0, 1, 3)))
     with pytest.raises(ValueError):
         solve_temperature(mesh, np.ones(mesh.elements), np.ones(mesh.elements))
+
+
+def test_bad_input_is_refused():
+    """A wrong-sized conductivity or heat, a non-positive k, or a condition that
+    selects no facet is refused, not solved (k > 0 for a conductor: common practice)."""
+    mesh = _p2_mesh(MeshTri.init_tensor(np.linspace(0, 1, 3), np.linspace(0, 1, 3)))
+    ones = np.ones(mesh.elements)
+    walls = FixedTemperature(0.0)
+    with pytest.raises(ValueError):
+        solve_temperature(mesh, ones[:-1], ones, fixed=walls)
+    with pytest.raises(ValueError):
+        solve_temperature(mesh, -ones, ones, fixed=walls)
+    with pytest.raises(ValueError):
+        solve_temperature(mesh, ones, ones[:-1], fixed=walls)
+    with pytest.raises(ValueError):
+        solve_temperature(mesh, ones, ones, fixed=FixedTemperature(0.0, lambda x: x[0] > 2.0))

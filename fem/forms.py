@@ -14,7 +14,7 @@ evaluated element by element (``Functional.elemental``) and summed likewise.
 """
 
 import numpy as np
-from skfem import BilinearForm, Functional
+from skfem import BilinearForm, Functional, LinearForm
 from skfem.helpers import dot, grad
 
 
@@ -91,3 +91,36 @@ def axisymmetric_ohmic_loss(w):
     """int sigma conj(e_i) e_j 2 pi r dr dz (W per unit^2), as :func:`ohmic_loss`."""
     # the per-point factors first: one product of the full (Ne, nelems, nqp) size
     return (w.sigma * 2.0 * np.pi * (w.x[0] + w.r0) * np.conj(w.e_i)) * w.e_j
+
+
+# Steady heat conduction (fem/thermal.py).  ``axisymmetric`` is 0 (planar:
+# volume weight 1) or 1 (volume weight 2 pi r, r = x + r0).
+
+def _volume(w):
+    """The volume weight: 1 (planar) or 2 pi (x + r0) (axisymmetric), in m."""
+    return 1.0 + w.axisymmetric * (2.0 * np.pi * (w.x[0] + w.r0) - 1.0)
+
+
+@BilinearForm
+def thermal_stiffness(u, v, w):
+    """int k grad(u) . grad(v) dV, k in W/(m K)."""
+    return w.k * dot(grad(u), grad(v)) * _volume(w)
+
+
+@BilinearForm
+def thermal_robin(u, v, w):
+    """int u v dA on a convective boundary, to be scaled by h (W/(m^2 K))."""
+    return u * v * _volume(w)
+
+
+@LinearForm
+def heat_load(v, w):
+    """int q v dV, q in W/m^3."""
+    return w.q * v * _volume(w)
+
+
+@Functional
+def volume_weight(w):
+    """int f dV (int dV without ``f``): a weighted integral, volume or area."""
+    f = w["f"] if "f" in w else 1.0
+    return f * _volume(w) * np.ones_like(w.x[0])

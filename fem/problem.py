@@ -298,6 +298,20 @@ class WindowProblem:
                               + 1j * np.bincount(self.loss_conductor, flat[:, column].imag, self.conductor_count))
         return out.reshape(self.conductor_count, count, count)
 
+    def loss_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
+        """Time-averaged ohmic loss density sigma |e|^2 in W/m^3 at the quadrature
+        points of every element (elements, points): the heat source of a thermal
+        solution (:mod:`racfield.fem.thermal`) for conductor ``voltages`` (Nc,)
+        V/m and ``potential`` (nodes,) Wb/m of one solved field (RMS phasors);
+        zero in air, the core and homogenized bundles."""
+        omega = 2.0 * np.pi * frequency
+        a_qp = self.loss_interpolation @ np.asarray(potential, dtype=complex)
+        u = np.asarray(voltages, dtype=complex)[self.loss_conductor][:, None]
+        e = u * self.loss_voltage_weight - 1j * omega * a_qp.reshape(self.loss_sigma.shape)
+        out = np.zeros((self.basis.nelems, self.loss_sigma.shape[1]))
+        out[self.loss_basis.tind] = self.loss_sigma * np.abs(e) ** 2
+        return out
+
     def solve_windings(self, frequency: float, connection: np.ndarray, winding_currents,
                        keep_field: bool = False, response: Response | None = None) -> WindingSolution:
         """One factorization at ``frequency`` (Hz) gives the conductor impedance

@@ -15,7 +15,6 @@ import numpy as np
 
 from racfield.fem.sweep import SweepResult
 from racfield.geometry.case import Case
-from racfield.geometry.case.units import format_frequency  # noqa: F401 (the writers' formatter)
 
 from racfield.geometry.resistance import winding_dc_resistance
 from racfield.geometry.turn_length import TurnLengths, turn_lengths
@@ -85,7 +84,7 @@ class Report:
     @cached_property
     def sections(self) -> dict | None:
         """Window, end-turn and whole-turn results side by side (None without [end_turns]; computed once)."""
-        return sections_document(self.case, self.sweep, self.windings)
+        return sections_document(self.case, self.sweep, self.windings, self.lengths.metres)
 
     @property
     def total_loss_w(self) -> list[float]:

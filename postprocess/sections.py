@@ -17,14 +17,12 @@ import numpy as np
 from racfield.fem.sweep import SweepResult
 from racfield.geometry.case import Case
 from racfield.geometry.resistance import winding_dc_resistance
-from racfield.geometry.turn_length import turn_lengths
 
 
-def section_windings(case: Case, sweep: SweepResult, share: np.ndarray) -> dict:
+def section_windings(case: Case, sweep: SweepResult, share: np.ndarray, metres: np.ndarray) -> dict:
     """Per winding of one section ``sweep``: ``rac_over_rdc`` [per f] of the whole
     turn in this section and ``loss_w`` [per f] of the section's ``share`` (Nc,) of
-    every turn's length (W)."""
-    metres = turn_lengths(case, sweep.conductors).metres
+    every turn's length ``metres`` (Nc,) m (W)."""
     out = {}
     for w in case.windings:
         idx = [c.index for c in sweep.conductors if c.winding == w.name]
@@ -36,10 +34,11 @@ def section_windings(case: Case, sweep: SweepResult, share: np.ndarray) -> dict:
     return out
 
 
-def sections_document(case: Case, sweep: SweepResult, windings: list) -> dict | None:
+def sections_document(case: Case, sweep: SweepResult, windings: list, metres: np.ndarray) -> dict | None:
     """``sections`` in results.json (None without ``[end_turns]``): the rule, the
     end-turn share of the turn length, and per section and winding Rac/Rdc and
-    loss; ``windings``: the whole-turn winding results of the report."""
+    loss; ``windings``: the whole-turn winding results of the report, ``metres``
+    (Nc,) m every conductor's turn length."""
     if sweep.sections is None:
         return None
     weights = np.asarray(sweep.end_weights, dtype=float)
@@ -50,7 +49,7 @@ def sections_document(case: Case, sweep: SweepResult, windings: list) -> dict | 
         "end_fraction": ends.fraction,
         "end_length_m": ends.length,
         "end_share": float(weights.mean()),
-        "window": {"windings": section_windings(case, sweep.sections["window"], 1.0 - weights)},
-        "end": {"windings": section_windings(case, sweep.sections["end"], weights)},
+        "window": {"windings": section_windings(case, sweep.sections["window"], 1.0 - weights, metres)},
+        "end": {"windings": section_windings(case, sweep.sections["end"], weights, metres)},
         "whole": {"windings": {w.name: {"rac_over_rdc": w.rac_over_rdc, "loss_w": w.loss_w} for w in windings}},
     }

@@ -18,7 +18,8 @@ import numpy as np
 
 from racfield.fem.whole_turns import run_case_sweep
 
-from racfield.postprocess.report import Report, format_frequency, winding_results
+from racfield.geometry.case.units import format_frequency
+from racfield.postprocess.report import Report, winding_results
 
 #: element sizes of the refined mesh are the sweep's divided by this
 REFINEMENT = 2.0

@@ -20,7 +20,8 @@ from racfield.postprocess import results_file
 from racfield.postprocess.atomic import replace_bytes
 from racfield.postprocess.comparison import COMPARISON_FILES, STUDY_FILES, summary, write_comparison, write_study_table
 from racfield.postprocess.harmonics import harmonics_table
-from racfield.postprocess.report import CAUTION, Report, build_report, format_frequency, parallel_document, results_document
+from racfield.geometry.case.units import format_frequency
+from racfield.postprocess.report import CAUTION, Report, build_report, parallel_document, results_document
 from racfield.postprocess.writers import WRITERS, write_all
 
 from .api import solve_report

@@ -13,7 +13,9 @@ from matplotlib.colors import Normalize
 from racfield.geometry.turn_length import describe
 
 from ..plotting import FIELD_MAP, save
-from ..report import Report, format_frequency
+from racfield.geometry.case.units import format_frequency
+
+from ..report import Report
 from .geometry_plot import window_figure
 
 

@@ -13,7 +13,9 @@ from matplotlib.tri import Triangulation
 from ..plotting import FIELD_MAP, linear_subtriangles, new_figure, save
 from racfield.geometry.mesher import CORE
 
-from ..report import Report, format_frequency
+from racfield.geometry.case.units import format_frequency
+
+from ..report import Report
 
 
 def write(report: Report, directory: Path) -> list[Path]:

@@ -8,7 +8,9 @@ from pathlib import Path
 import numpy as np
 
 from ..plotting import new_figure, save
-from ..report import Report, format_frequency, mmf_document
+from racfield.geometry.case.units import format_frequency
+
+from ..report import Report, mmf_document
 
 
 def write(report: Report, directory: Path) -> list[Path]:

@@ -113,6 +113,18 @@ def thermal_robin(u, v, w):
     return u * v * _volume(w)
 
 
+@BilinearForm
+def thermal_contact(u, v, w):
+    """int c u v dA over a resistive interface, c = 1/R'' in W/(m^2 K)."""
+    return w.c * u * v * _volume(w)
+
+
+@LinearForm
+def test_integral(v, w):
+    """int v dV: each basis function's integral (weights of mean values)."""
+    return v * _volume(w)
+
+
 @LinearForm
 def heat_load(v, w):
     """int q v dV, q in W/m^3."""

@@ -85,6 +85,7 @@ class SweepResult:
     #: whole turns (:mod:`racfield.fem.whole_turns`): {"window": SweepResult, "end": SweepResult}
     sections: dict | None = None
     end_weights: np.ndarray | None = None   #: (Nc,) each conductor's share of its length in the end section
+    thermal: object | None = None   #: the thermal solution (:class:`racfield.fem.coupled_thermal.ThermalResult`)
 
 
 @dataclass
@@ -378,6 +379,16 @@ def _solve(sweep: _Sweep, f: float, keep_field: bool = False, response=None):
                    currents=solution.currents[:ne])
 
 
+def operating_solution(sweep: _Sweep, f: float, winding_currents: np.ndarray,
+                       problem: WindowProblem | None = None):
+    """The windings' solution with its field at ``f`` Hz for ``winding_currents``
+    (A RMS phasors, case winding order) instead of the case's, on ``problem``
+    (the same mesh assembled with other resistivities) or the sweep's own."""
+    state = replace(sweep, winding_currents=np.asarray(winding_currents, dtype=complex),
+                    problem=problem if problem is not None else sweep.problem)
+    return _solve(state, f, keep_field=True)
+
+
 def _solve_point(sweep: _Sweep, i: int, model, keep_field: bool) -> PointResult:
     """Solve frequency ``i`` (full solve, or from the reduced ``model``) and
     store it; ``keep_field``: also keep its field as the sweep's snapshot."""
@@ -444,8 +455,8 @@ def _self_check(sweep: _Sweep, chosen: list[int], change: np.ndarray) -> list[tu
 
 def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = None,
               method: str = "auto", done: dict[int, PointResult] | None = None,
-              on_point: Callable[[int, PointResult, Callable[[], "SweepResult"]], None] | None = None
-              ) -> SweepResult:
+              on_point: Callable[[int, PointResult, Callable[[], "SweepResult"]], None] | None = None,
+              finish: Callable[["_Sweep"], object] | None = None) -> SweepResult:
     """Place, mesh, assemble once and solve every frequency of ``case``.
 
     ``method``: "auto" (reduced model for long sweeps without litz bundles),
@@ -453,7 +464,9 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
     already solved (by index, e.g. from an interrupted run), taken as they
     are; the last frequency is solved again all the same, for its field.
     ``on_point(index, point, partial)`` is called after every newly solved
-    point; ``partial()`` gives the sweep of the points solved so far."""
+    point; ``partial()`` gives the sweep of the points solved so far.
+    ``finish(state)``: run on the solved sweep's state (its mesh and assembled
+    problem, e.g. the thermal solution); its value is the result's ``thermal``."""
     sweep = _setup(case)
     done = dict(done or {})
     for i, point in done.items():
@@ -472,4 +485,9 @@ def run_sweep(case: Case, progress: Callable[[int, int, float], None] | None = N
                      for f, r in zip(sweep.freqs, sweep.points.residual)]
     warnings = sweep_warnings(case, sweep.conductors, sweep.rho, sweep.window_mesh, sweep.freqs, residuals,
                               sweep.sweep_info)
-    return sweep.result(warnings=warnings)
+    result = sweep.result(warnings=warnings)
+    if finish is not None:
+        start = time.perf_counter()
+        result.thermal = finish(sweep)
+        result.timings["thermal_s"] = time.perf_counter() - start
+    return result

@@ -13,6 +13,15 @@ and no heat flow (adiabatic, the natural condition) on the rest.
 
 Discretization: P2 on the mesh's second-order (curved) triangles, the same
 basis as :class:`racfield.fem.problem.WindowProblem`, one sparse LU per solve.
+
+Thin resistive layers (a conductor's insulation, thinner than the elements
+around it): a conductor's surface may carry a thermal resistance R''
+(m^2 K/W), -k dT/dn = (T_inside - T_outside) / R'' across its boundary.  The
+temperature is then discontinuous there: the DOFs on that boundary are
+doubled, the conductor's elements taking their own copies, and the interface
+term int (1/R'') [T][v] dA joins the two sides (the standard thin-layer or
+contact-resistance model of conduction, e.g. Incropera & DeWitt,
+"Fundamentals of Heat and Mass Transfer", ch. 3, thermal contact resistance).
 The heat out through a fixed-temperature boundary is taken from the
 residual of its rows (the consistent boundary flux), so the discrete energy
 balance holds to rounding.
@@ -28,7 +37,9 @@ import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 from skfem import Basis, ElementTriP2, FacetBasis, MeshTri2
 
-from .forms import heat_load, thermal_robin, thermal_stiffness, volume_weight
+from .forms import heat_load, test_integral, thermal_contact, thermal_robin, thermal_stiffness, volume_weight
+
+OUTSIDE = -10   #: the region beyond an outer boundary facet
 
 Where = Callable[[np.ndarray], np.ndarray]
 """A facet selector: facet midpoints (2, nf) in m -> boolean mask (nf,)."""
@@ -40,10 +51,12 @@ the quadrature points' coordinates x (2, nelements, nqp) in m."""
 @dataclass(frozen=True)
 class FixedTemperature:
     """T = ``temperature`` (degC) on the boundary facets ``where`` selects
-    (None: every outer boundary facet, e.g. the walls of an ideal-core window)."""
+    (None: every outer boundary facet, e.g. the walls of an ideal-core window),
+    or with ``region`` on every node of that mesh region (an isothermal core body)."""
 
     temperature: float
     where: Where | None = None
+    region: int | None = None
 
 
 @dataclass(frozen=True)
@@ -78,6 +91,7 @@ class TemperatureField:
     heat_generated: float
     heat_out_fixed: np.ndarray
     heat_out_convective: np.ndarray
+    element_dofs: np.ndarray | None = None   #: (6, ne) each element's entries of ``temperature``
 
     @property
     def heat_out(self) -> float:
@@ -96,6 +110,122 @@ def element_conductivity(region: np.ndarray, conductor: Sequence[float] | float,
     inside = region >= 0
     k[inside] = per_conductor[region[inside]]
     return k
+
+
+@dataclass
+class _Split:
+    """The DOFs doubled on resistive conductor surfaces.  ``ext`` (Nbfun,
+    nelements): every element's DOFs in the extended numbering (a conductor's
+    elements take its copies); ``size``: the extended count; ``origin``
+    (size,): the original DOF of each extended one; ``jump``: the interface
+    matrix int (1/R'') [T][v] dA (W/m or W per K) in the extended numbering."""
+
+    ext: np.ndarray
+    size: int
+    origin: np.ndarray
+    jump: sp.csr_matrix
+
+    @classmethod
+    def none(cls, basis: Basis) -> "_Split":
+        return cls(basis.element_dofs, basis.N, np.arange(basis.N), sp.csr_matrix((basis.N, basis.N)))
+
+
+def _facet_dofs(basis: Basis, facets: np.ndarray) -> np.ndarray:
+    """(3, nf) the P2 DOFs of each facet: its two vertices and its midpoint."""
+    mesh = basis.mesh
+    return np.vstack([basis.nodal_dofs[0, mesh.facets[0, facets]], basis.nodal_dofs[0, mesh.facets[1, facets]],
+                      basis.facet_dofs[0, facets]])
+
+
+def _surface_sides(basis: Basis, region: np.ndarray, resistance: np.ndarray):
+    """Per facet: the regions on its two sides (OUTSIDE beyond the boundary)
+    and each side's R'' (m^2 K/W; a conductor's value for the facet's normal
+    direction, zero for air, core or outside)."""
+    mesh = basis.mesh
+    sides = np.vstack([region[mesh.f2t[0]], np.where(mesh.f2t[1] >= 0, region[np.maximum(mesh.f2t[1], 0)], OUTSIDE)])
+    tangent = mesh.p[:, mesh.facets[1]] - mesh.p[:, mesh.facets[0]]
+    axis = (np.abs(tangent[0]) > np.abs(tangent[1])).astype(int)   # tangent along x: normal along y
+    own = np.zeros(sides.shape)
+    for s in range(2):
+        conductor = sides[s] >= 0
+        own[s, conductor] = resistance[sides[s, conductor], axis[conductor]]
+    return sides, own
+
+
+def _split(basis: Basis, region: np.ndarray, resistance: np.ndarray | None, weight: dict) -> _Split:
+    """Double the DOFs of every conductor surface with R'' > 0 (see the
+    module docstring).  ``resistance`` (Nc, 2): R'' on the faces whose normal
+    is along x and along y (round: both the radial value)."""
+    if resistance is None or not np.any(np.asarray(resistance) > 0):
+        return _Split.none(basis)
+    resistance = np.asarray(resistance, dtype=float)
+    n = basis.N
+    sides, own = _surface_sides(basis, region, resistance)
+    bounding = sides[0] != sides[1]
+    keys, keep = [], []
+    for s in range(2):
+        on = bounding & (sides[s] >= 0)
+        dofs = _facet_dofs(basis, np.nonzero(on)[0])
+        key = sides[s, on] * n + dofs
+        resistive = own[s, on] > 0
+        keys.append(key[:, resistive].ravel())
+        keep.append(key[:, ~resistive].ravel())   # continuous there: not doubled
+    doubled = np.setdiff1d(np.concatenate(keys), np.concatenate(keep))
+    origin = np.concatenate([np.arange(n), doubled % n])
+
+    def extended(side_region: np.ndarray, dofs: np.ndarray) -> np.ndarray:
+        """The extended DOF of ``dofs`` seen from ``side_region`` (broadcast)."""
+        key = np.where(side_region >= 0, side_region * n + dofs, -1)
+        at = np.minimum(np.searchsorted(doubled, key), max(len(doubled) - 1, 0))
+        found = (key >= 0) & (doubled[at] == key)
+        return np.where(found, n + at, dofs)
+
+    ext = extended(region[None, :], basis.element_dofs)
+    facets = np.nonzero(bounding & (own.sum(axis=0) > 0))[0]
+    facet_basis = FacetBasis(basis.mesh, basis.elem, facets=facets)
+    nqp = facet_basis.X.shape[1]
+    contact = 1.0 / own[:, facets].sum(axis=0)
+    local = thermal_contact.elemental(facet_basis, c=np.repeat(contact[:, None], nqp, axis=1),
+                                      **weight).tolocal()                        # (nf, nb, nb)
+    side_of = sides[:, facets]
+    # the facet basis takes each facet's element on side 0 (f2t[0]): its DOFs
+    # seen from either side
+    dofs = facet_basis.element_dofs
+    a, b = extended(side_of[0][None, :], dofs), extended(side_of[1][None, :], dofs)
+    both = np.vstack([a, b]).T                                                   # (nf, 2 nb)
+    block = np.block([[local, -local], [-local, local]])
+    rows = np.broadcast_to(both[:, :, None], block.shape)
+    cols = np.broadcast_to(both[:, None, :], block.shape)
+    size = n + len(doubled)
+    jump = sp.csr_matrix((block.ravel(), (rows.ravel(), cols.ravel())), shape=(size, size))
+    return _Split(ext, size, origin, jump)
+
+
+def _local_matrix(form, basis: Basis, split: _Split, **kwargs) -> sp.csr_matrix:
+    """A bilinear form assembled element by element into the extended numbering."""
+    local = form.elemental(basis, **kwargs).tolocal()                           # (ne, nb, nb)
+    ext = split.ext.T
+    rows = np.broadcast_to(ext[:, :, None], local.shape)
+    cols = np.broadcast_to(ext[:, None, :], local.shape)
+    return sp.csr_matrix((local.ravel(), (rows.ravel(), cols.ravel())), shape=(split.size, split.size))
+
+
+def _local_vector(form, basis: Basis, split: _Split, **kwargs) -> np.ndarray:
+    """A linear form assembled element by element into the extended numbering."""
+    local = form.elemental(basis, **kwargs).tolocal()                           # (ne, nb)
+    return np.bincount(split.ext.T.ravel(), local.ravel(), split.size)
+
+
+def _pad(matrix: sp.spmatrix, size: int) -> sp.csr_matrix:
+    """An original-numbering matrix in the extended numbering (the outside copies)."""
+    coo = matrix.tocoo()
+    return sp.csr_matrix((coo.data, (coo.row, coo.col)), shape=(size, size))
+
+
+def thermal_basis(window_mesh) -> Basis:
+    """The P2 basis of the thermal solution on ``window_mesh`` (for
+    conductivities at its quadrature points, see :func:`solve_temperature`)."""
+    return _basis(window_mesh)
 
 
 def _basis(window_mesh) -> Basis:
@@ -138,30 +268,34 @@ def _weight(r0: float | None) -> dict:
 
 
 def _assemble(basis: Basis, k: np.ndarray, q: np.ndarray, convective: Sequence[Convection],
-              weight: dict) -> tuple[sp.csr_matrix, np.ndarray, list[tuple[FacetBasis, Convection]]]:
-    """The matrix int k grad T . grad v dV + sum int h T v dA and the load
-    int q v dV + sum int h T_amb v dA (W/m or W per degC and W/m or W)."""
-    nqp = basis.X.shape[1]
-    matrix = thermal_stiffness.assemble(basis, k=np.repeat(np.asarray(k, float)[:, None], nqp, axis=1),
-                                        **weight)
-    load = heat_load.assemble(basis, q=q, **weight)
+              weight: dict, split: _Split) -> tuple[sp.csr_matrix, np.ndarray, list[tuple[FacetBasis, Convection]]]:
+    """The matrix int k grad T . grad v dV + interface terms + sum int h T v dA
+    and the load int q v dV + sum int h T_amb v dA (W/m or W per degC and W/m
+    or W), in the extended numbering of ``split``."""
+    matrix = _local_matrix(thermal_stiffness, basis, split, k=k, **weight) + split.jump
+    load = _local_vector(heat_load, basis, split, q=q, **weight)
     robins = []
     for condition in convective:
         facet_basis = FacetBasis(basis.mesh, basis.elem, facets=_facets(basis, condition.where))
-        robin = condition.h * thermal_robin.assemble(facet_basis, **weight)
+        robin = _pad(condition.h * thermal_robin.assemble(facet_basis, **weight), split.size)
         matrix = matrix + robin
-        load = load + condition.ambient * (robin @ np.ones(basis.N))
+        load = load + condition.ambient * (robin @ np.ones(split.size))
         robins.append((facet_basis, condition))
     return matrix.tocsr(), load, robins
 
 
-def _fixed_dofs(basis: Basis, fixed: Sequence[FixedTemperature]) -> tuple[list[np.ndarray], np.ndarray]:
+def _fixed_dofs(basis: Basis, fixed: Sequence[FixedTemperature], split: _Split,
+                region: np.ndarray) -> tuple[list[np.ndarray], np.ndarray]:
     """The DOFs of each fixed condition (a later condition takes a shared
-    DOF) and the prescribed value (degC) on all DOFs (NaN where free)."""
-    values = np.full(basis.N, np.nan)
-    owner = np.full(basis.N, -1)
+    DOF) and the prescribed value (degC) on all DOFs (NaN where free), in the
+    extended numbering (a boundary facet's outside copies)."""
+    values = np.full(split.size, np.nan)
+    owner = np.full(split.size, -1)
     for i, condition in enumerate(fixed):
-        dofs = basis.get_dofs(facets=_facets(basis, condition.where)).all()
+        if condition.region is not None:
+            dofs = np.unique(split.ext[:, region == condition.region])
+        else:
+            dofs = basis.get_dofs(facets=_facets(basis, condition.where)).all()
         values[dofs] = condition.temperature
         owner[dofs] = i
     return [np.nonzero(owner == i)[0] for i in range(len(fixed))], values
@@ -177,16 +311,17 @@ def _solve(matrix: sp.csr_matrix, load: np.ndarray, values: np.ndarray) -> np.nd
     return t
 
 
-def _conductor_mean(basis: Basis, region: np.ndarray, t: np.ndarray, weight: dict) -> np.ndarray:
+def _conductor_mean(basis: Basis, region: np.ndarray, t: np.ndarray, weight: dict, split: _Split) -> np.ndarray:
     """Mean temperature (degC) of each conductor region, weighted by area
-    (planar) or volume (axisymmetric)."""
+    (planar) or volume (axisymmetric), from the conductors' own DOFs."""
     count = int(region.max()) + 1 if region.size and region.max() >= 0 else 0
     elements = np.nonzero(region >= 0)[0]
     if count == 0:
         return np.zeros(0)
     sub = basis.with_elements(elements)
     measure = volume_weight.elemental(sub, **weight)
-    integral = volume_weight.elemental(sub, f=sub.interpolate(t), **weight)
+    local = test_integral.elemental(sub, **weight).tolocal()                     # (ne, nb): int phi_i dV
+    integral = (local * t[split.ext[:, elements].T]).sum(axis=1)
     size = np.bincount(region[elements], measure, count)
     with np.errstate(invalid="ignore", divide="ignore"):
         return np.bincount(region[elements], integral, count) / size
@@ -195,16 +330,22 @@ def _conductor_mean(basis: Basis, region: np.ndarray, t: np.ndarray, weight: dic
 def solve_temperature(window_mesh, conductivity: np.ndarray, heat: Heat, *,
                       fixed: FixedTemperature | Sequence[FixedTemperature] | None = None,
                       convective: Convection | Sequence[Convection] | None = None,
-                      radius_offset: float | None = None) -> TemperatureField:
+                      radius_offset: float | None = None,
+                      surface_resistance: np.ndarray | None = None) -> TemperatureField:
     """Steady temperature of the mesh ``window_mesh`` (a
     :class:`racfield.geometry.mesher.WindowMesh`, or any object with its
     ``points``, ``triangles`` and ``region``).
 
-    ``conductivity`` (nelements,) W/(m K) (see :func:`element_conductivity`);
+    ``conductivity`` (nelements,) W/(m K) (see :func:`element_conductivity`),
+    or (nelements, nqp) at the quadrature points of :func:`thermal_basis`;
     ``heat`` q in W/m^3 (see :data:`Heat`); ``fixed``/``convective``: one
     condition or a list; ``radius_offset`` None for planar, or r0 (m) with
-    r = x + r0 for an axisymmetric model.  At least one fixed or convective
-    condition must hold the temperature level.
+    r = x + r0 for an axisymmetric model; ``surface_resistance`` (Nc, 2)
+    m^2 K/W: a thin resistive layer on each conductor's surface, on its faces
+    whose normal lies along x and along y (see the module docstring; None or
+    zeros: none).  At least one fixed or convective condition must hold the
+    temperature level.  ``temperature`` and ``nodes`` then hold both sides'
+    values of a doubled DOF (the nodes repeated).
     """
     fixed = [fixed] if isinstance(fixed, FixedTemperature) else list(fixed or [])
     convective = [convective] if isinstance(convective, Convection) else list(convective or [])
@@ -212,25 +353,32 @@ def solve_temperature(window_mesh, conductivity: np.ndarray, heat: Heat, *,
         raise ValueError("an adiabatic domain has no steady temperature: fix T or add convection")
     basis = _basis(window_mesh)
     conductivity = np.asarray(conductivity, dtype=float)
-    if conductivity.shape != (basis.nelems,) or not np.all(conductivity > 0) or not np.isfinite(conductivity).all():
-        raise ValueError(f"conductivity needs one positive W/(m K) value per element ({basis.nelems})")
+    nqp = basis.X.shape[1]
+    if conductivity.shape == (basis.nelems,):
+        conductivity = np.repeat(conductivity[:, None], nqp, axis=1)
+    if (conductivity.shape != (basis.nelems, nqp) or not np.all(conductivity > 0)
+            or not np.isfinite(conductivity).all()):
+        raise ValueError(f"conductivity needs one positive W/(m K) value per element ({basis.nelems}) "
+                         f"or per quadrature point ({basis.nelems}, {nqp})")
     weight = _weight(radius_offset)
     q = _heat_at_quadrature(basis, heat)
-    matrix, load, robins = _assemble(basis, conductivity, q, convective, weight)
-    dofs, values = _fixed_dofs(basis, fixed)
+    region = np.asarray(window_mesh.region)
+    split = _split(basis, region, surface_resistance, weight)
+    matrix, load, robins = _assemble(basis, conductivity, q, convective, weight, split)
+    dofs, values = _fixed_dofs(basis, fixed, split, region)
     t = _solve(matrix, load, values)
     # heat out of a fixed boundary: the residual of its rows (consistent flux)
     residual = load - matrix @ t
     out_fixed = np.array([residual[d].sum() for d in dofs])
     out_convective = np.array([
-        _convected_heat(facet_basis, t, condition, weight) for facet_basis, condition in robins])
+        _convected_heat(facet_basis, t[:basis.N], condition, weight) for facet_basis, condition in robins])
     hot = int(np.argmax(t))
-    region = np.asarray(window_mesh.region)
+    nodes = basis.doflocs[:, split.origin]
     return TemperatureField(
-        temperature=t, nodes=basis.doflocs, conductor_mean=_conductor_mean(basis, region, t, weight),
-        hot_spot=float(t[hot]), hot_spot_at=(float(basis.doflocs[0, hot]), float(basis.doflocs[1, hot])),
+        temperature=t, nodes=nodes, conductor_mean=_conductor_mean(basis, region, t, weight, split),
+        hot_spot=float(t[hot]), hot_spot_at=(float(nodes[0, hot]), float(nodes[1, hot])),
         heat_generated=float(volume_weight.assemble(basis, f=q, **weight)),
-        heat_out_fixed=out_fixed, heat_out_convective=out_convective)
+        heat_out_fixed=out_fixed, heat_out_convective=out_convective, element_dofs=split.ext)
 
 
 def _convected_heat(facet_basis: FacetBasis, t: np.ndarray, condition: Convection, weight: dict) -> float:

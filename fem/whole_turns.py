@@ -36,6 +36,7 @@ from racfield.geometry.turn_length import TurnLengths, turn_lengths
 
 from .parallel import basis_impedance, sharing
 from . import sweep as single
+from .coupled_thermal import solve_case_thermal
 from .sweep import PointResult, SweepResult
 
 
@@ -93,7 +94,9 @@ def run_case_sweep(case: Case, progress: Callable[[int, int, float], None] | Non
     sweep keeps ``done``/``on_point`` for resuming; the end section is solved
     whole).  The result carries both sections in ``sections``."""
     if case.end_turns is None:
-        return single.run_sweep(case, progress=progress, method=method, done=done, on_point=on_point)
+        finish = solve_case_thermal if case.thermal is not None else None
+        return single.run_sweep(case, progress=progress, method=method, done=done, on_point=on_point,
+                                finish=finish)
     window = single.run_sweep(window_section(case), progress=progress, method=method, done=done, on_point=on_point)
     end = single.run_sweep(end_section(case), method=method)
     turns = turn_lengths(case, window.conductors)

@@ -37,6 +37,14 @@ class Conductor:
     strand: int = 1     #: 1-based position among the turn's parallel conductors
     strands: int = 0    #: homogenized litz bundle (round, ``width`` its diameter): its strand count; 0: solid
     strand_diameter: float = 0.0  #: m, homogenized litz bundle: diameter of one strand
+    outer_width: float = 0.0      #: m, size along x over the insulation (0: bare)
+    outer_height: float = 0.0     #: m, size along y over the insulation (0: bare)
+
+    @property
+    def insulation(self) -> tuple[float, float]:
+        """Insulation thickness (m) on the faces normal to x and to y: half of
+        outer minus bare size (round: both the radial thickness)."""
+        return (max(0.5 * (self.outer_width - self.width), 0.0), max(0.5 * (self.outer_height - self.height), 0.0))
 
     @property
     def area(self) -> float:
@@ -96,22 +104,25 @@ class _Placement:
     counts: dict[str, int] = field(default_factory=dict)   #: conductors of each winding so far
 
     def add_one(self, winding: str, shape: str, x: float, y: float, w: float, h: float, key: str,
-                strands: int = 0, strand_diameter: float = 0.0) -> None:
-        """One conductor region of case ``shape`` centred at (x, y), bare size w x h (m)."""
+                strands: int = 0, strand_diameter: float = 0.0, outer: tuple[float, float] = (0.0, 0.0)) -> None:
+        """One conductor region of case ``shape`` centred at (x, y), bare size w x h
+        and ``outer`` size over its insulation (m)."""
         # the winding's conductors in order, taken `parallel` at a time, make its turns
         seen = self.counts.get(winding, 0)
         self.counts[winding] = seen + 1
         per_turn = parallel_of(self.case, winding).conductors
         self.placed.append(Conductor(len(self.placed), winding, seen // per_turn + 1, SECTIONS[shape],
-                                     x, y, w, h, key, seen % per_turn + 1, strands, strand_diameter))
+                                     x, y, w, h, key, seen % per_turn + 1, strands, strand_diameter, *outer))
 
-    def add(self, winding: str, spec: ConductorSpec, x: float, y: float, w: float, h: float, key: str) -> None:
-        """One turn of ``spec`` centred at (x, y): a litz turn meshed strand by
-        strand adds every strand, a homogenized one a single bundle."""
+    def add(self, winding: str, spec: ConductorSpec, x: float, y: float, w: float, h: float, key: str,
+            outer: tuple[float, float] = (0.0, 0.0)) -> None:
+        """One turn of ``spec`` centred at (x, y), bare size w x h and ``outer``
+        size (m): a litz turn meshed strand by strand adds every strand (with no
+        insulation of its own), a homogenized one a single bundle."""
         if spec.shape != "litz":
-            self.add_one(winding, spec.shape, x, y, w, h, key)
+            self.add_one(winding, spec.shape, x, y, w, h, key, outer=outer)
         elif spec.representation == "bundle":
-            self.add_one(winding, "litz", x, y, w, h, key, spec.strands, spec.strand_diameter)
+            self.add_one(winding, "litz", x, y, w, h, key, spec.strands, spec.strand_diameter, outer)
         else:
             d = spec.strand_diameter
             for sx, sy in strand_positions(spec.strands, d, w, key):
@@ -127,11 +138,31 @@ def place(case: Case) -> list[Conductor]:
     for layer in case.layers:
         position = _place_layer(placement, layer, span, position)
     for item in case.conductors:
-        bw, bh, _, _ = _oriented(item.conductor, "across-width")
-        placement.add(item.winding, item.conductor, item.at[0], item.at[1], bw, bh, item.key)
+        bw, bh, ow, oh = _oriented(item.conductor, "across-width")
+        placement.add(item.winding, item.conductor, item.at[0], item.at[1], bw, bh, item.key, (ow, oh))
     _check_inside(placement.placed, case.window, case.model.axisymmetric)
     _check_overlaps(placement.placed)
     return placement.placed
+
+
+def insulation_strips(case: Case) -> list[tuple[float, float, float, float]]:
+    """The layers' ``insulation_after`` as rectangles (x0, x1, y0, y1) in m:
+    from a layer's outer face to the next one's, over the free span between
+    the margins along the layers (the tape between layers)."""
+    span = _span(case.window)
+    strips = []
+    position = span.stack_lo
+    for layer in case.layers:
+        _, _, ow, oh = _oriented(layer.conductor, case.window.stacking)
+        thickness = ow if span.across_width else oh
+        for _ in range(layer.repeat):
+            position += thickness
+            if layer.insulation_after > 0.0:
+                lo, hi = position, position + layer.insulation_after
+                strips.append((lo, hi, span.along_lo, span.along_hi) if span.across_width
+                              else (span.along_lo, span.along_hi, lo, hi))
+            position += layer.insulation_after
+    return strips
 
 
 def _turn_steps(layer: Layer, span: _Span, pitch: float) -> tuple[float, float]:
@@ -169,7 +200,7 @@ def _place_layer(placement: _Placement, layer: Layer, span: _Span, position: flo
         for i in range(layer.turns):
             along = start + (i + 0.5) * step
             x, y = (centre_stack, along) if span.across_width else (along, centre_stack)
-            placement.add(layer.winding, layer.conductor, x, y, bw, bh, layer.key)
+            placement.add(layer.winding, layer.conductor, x, y, bw, bh, layer.key, (ow, oh))
         position += thickness + layer.insulation_after
     return position
 

@@ -22,6 +22,7 @@ from racfield.geometry.turn_length import TurnLengths, turn_lengths
 from .estimates import hand_estimates
 from .harmonics import harmonic_losses, harmonics_document
 from .sections import sections_document
+from .thermal import thermal_document
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
 CAUTION = ("Results are model estimates from a 2-D field solution. Temperature rise, insulation, "
@@ -85,6 +86,11 @@ class Report:
     def sections(self) -> dict | None:
         """Window, end-turn and whole-turn results side by side (None without [end_turns]; computed once)."""
         return sections_document(self.case, self.sweep, self.windings, self.lengths.metres)
+
+    @cached_property
+    def thermal(self) -> dict | None:
+        """``thermal`` of results.json (None without [thermal]; computed once)."""
+        return thermal_document(self.case, self.sweep.thermal, self.sweep.conductors)
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -165,6 +171,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         **({"parallel": par} if (par := parallel_document(report)) else {}),
         **({"harmonics": h} if not partial and (h := harmonics_document(report.harmonics)) else {}),
         **({"sections": report.sections} if report.sections else {}),
+        **({"thermal": report.thermal} if not partial and report.thermal else {}),
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
         "warnings": [dict(w) for w in sweep.warnings],

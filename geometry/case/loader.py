@@ -24,6 +24,7 @@ from .sections import (model_notes, plan_waveforms, read_compare, read_core, rea
 from ..materials import ALIASES, MATERIALS
 from .study import VARIANT_KEY, StudyPoint, point_document, study_points
 from .table import Table, list_of_tables
+from .thermal_keys import read_thermal
 
 MAX_DEPTH = 16  #: nesting of tables and arrays a case may have (waveform samples and variant conductors reach 6)
 
@@ -88,6 +89,10 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
 
     core, centre_leg = read_core(top, window, model)
     end_turns = read_end_turns(top, model)
+    thermal = read_thermal(top, window, frequencies, settings is not None)
+    if thermal is not None and end_turns is not None:
+        raise CaseError("thermal", "is not solved together with [end_turns] yet (the end turns' heat has no 2-D path)",
+                        "remove [end_turns] for the thermal solution, or [thermal] for the end-turn losses")
 
     mesh = read_mesh(Table(top.raw("mesh", {}), "mesh"))
     top.close()
@@ -95,7 +100,7 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
                 mesh, path, core, model_notes(model) + wave_notes, tuple(variants), compare_frequency,
                 parallel=tuple(parallel), waveform=settings, allow_outside_files=allow_outside_files,
-                centre_leg=centre_leg, end_turns=end_turns)
+                centre_leg=centre_leg, end_turns=end_turns, thermal=thermal)
     for arrangement in variant_cases(case):
         check_arrangement(arrangement)
     return case

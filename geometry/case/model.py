@@ -234,6 +234,44 @@ class EndTurns:
     length: float | None = None
 
 
+#: fills between the conductors and their thermal conductivity in W/(m K)
+#: (common practice: still air, conduction only; impregnating varnish; a potting compound)
+FILLS = {"air": 0.03, "varnish": 0.2, "potting": 0.5}
+
+
+@dataclass(frozen=True)
+class Thermal:
+    """``[thermal]``: the steady temperature the loss causes (see
+    :mod:`racfield.fem.coupled_thermal`).  Temperatures in degC,
+    conductivities in W/(m K), ``h`` in W/(m^2 K), frequency in Hz.
+
+    ``core_temperature``: the core walls (an ideal-core window), the core
+    body, or the magnetic wall of an open-wall model held at it; ``h`` and
+    ``ambient``: a convective far boundary (open and core-body models).
+    ``fill_conductivity``: the space between the conductors;
+    ``insulation_conductivity``: each conductor's insulation (outer minus bare
+    size); ``layer_insulation_conductivity``: the layers' ``insulation_after``;
+    ``frequency``: the operating frequency of a case without waveforms (None:
+    the waveforms' harmonics).  ``coupled``: each turn's resistivity follows
+    its mean temperature, iterated until the total loss changes by less than
+    ``tolerance``; no steady state at or below ``max_temperature`` (or none
+    within ``max_iterations``) is reported as runaway."""
+
+    core_temperature: float | None = None
+    h: float | None = None
+    ambient: float | None = None
+    fill: str = "air"
+    fill_conductivity: float = FILLS["air"]
+    insulation_conductivity: float = 0.2
+    layer_insulation_conductivity: float = 0.2
+    core_conductivity: float = 4.0
+    frequency: float | None = None
+    coupled: bool = True
+    tolerance: float = 1e-5
+    max_iterations: int = 50
+    max_temperature: float = 400.0
+
+
 @dataclass(frozen=True)
 class Case:
     """A checked case.  ``notes``: remarks for the user that are not errors."""
@@ -260,6 +298,7 @@ class Case:
     allow_outside_files: bool = False       #: files it names may lie outside the case folder (study points too)
     centre_leg: CentreLeg | None = None     #: [core] centre_leg: per-turn lengths (planar models)
     end_turns: "EndTurns | None" = None     #: the part of each turn outside the core (planar models)
+    thermal: Thermal | None = None          #: [thermal]: the temperature the loss causes
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)

@@ -24,16 +24,21 @@ _KINDS = {
     "time": ("s", {}),
     "angle": ("deg", {"rad": 180.0 / math.pi, "\u00b0": 1.0}),
     "resistivity": ("ohm*m", {"ohm m": 1.0, "ohm*cm": 1e-2, "uohm*cm": 1e-8}),
+    "thermal conductivity": ("W/(m K)", {"W/(m*K)": 1.0, "W/m/K": 1.0, "W/mK": 1.0, "W/(m.K)": 1.0}),
+    "heat transfer coefficient": ("W/(m2 K)", {"W/(m^2 K)": 1.0, "W/(m2*K)": 1.0, "W/(m^2*K)": 1.0,
+                                               "W/m2/K": 1.0, "W/m^2/K": 1.0, "W/m2K": 1.0}),
 }
 _PREFIXABLE = {"length": True, "frequency": True, "current": True, "time": True,
-               "angle": False, "resistivity": False}
+               "angle": False, "resistivity": False, "thermal conductivity": False,
+               "heat transfer coefficient": False}
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 
 EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "current": '"1.5 A"',
             "angle": '"30 deg"', "temperature": '"100 degC"', "time": '"10 us"',
-            "resistivity": '"1.72e-8 ohm*m"'}
+            "resistivity": '"1.72e-8 ohm*m"', "thermal conductivity": '"0.2 W/(m K)"',
+            "heat transfer coefficient": '"10 W/(m2 K)"'}
 
 
 #: the magnitudes a case may give, zero aside: (smallest, largest, in words).  Beyond
@@ -85,8 +90,9 @@ def quantity(value: object, kind: str, key: str) -> float:
     """Convert ``value`` (a number in SI, or a string with a unit) to a float.
 
     ``kind`` is one of ``length`` (m), ``frequency`` (Hz), ``current`` (A),
-    ``time`` (s), ``angle`` (degrees), ``temperature`` (degC) or
-    ``resistivity`` (ohm*m).
+    ``time`` (s), ``angle`` (degrees), ``temperature`` (degC),
+    ``resistivity`` (ohm*m), ``thermal conductivity`` (W/(m K)) or
+    ``heat transfer coefficient`` (W/(m^2 K)).
     Raises :class:`CaseError` naming ``key`` on anything else.
     """
     if isinstance(value, bool):

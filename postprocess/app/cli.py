@@ -63,6 +63,8 @@ def _check_text(case: "Case") -> str:
         share = f"{ends.fraction * 100:.3g} % of each turn" if ends.fraction is not None else \
             f"{ends.length * 1e3:.4g} mm of each turn"
         lines.append(f"end turns: {share} outside the core, solved as a second section beside the centre leg")
+    if case.thermal is not None:
+        lines.append(_thermal_line(case))
     copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
     lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")
@@ -87,6 +89,22 @@ def _check_text(case: "Case") -> str:
             cells.append(f"{delta * 1e3:>7.4g} mm {sizes[w.name] / delta:>18.3g}")
         lines.append(f"{format_frequency(f):>12} " + " ".join(cells))
     return "\n".join(lines)
+
+
+def _thermal_line(case: "Case") -> str:
+    """``racfield check``: what the thermal solution will take."""
+    from racfield.geometry.case.units import format_frequency
+
+    t = case.thermal
+    sinks = []
+    if t.core_temperature is not None:
+        sinks.append(f"core at {t.core_temperature:g} degC")
+    if t.h is not None:
+        sinks.append(f"h = {t.h:g} W/(m2 K) to {t.ambient:g} degC at the far boundary")
+    point = "the waveforms' harmonics" if t.frequency is None else format_frequency(t.frequency)
+    return (f"thermal: {' and '.join(sinks)}; between the conductors {t.fill_conductivity:g} W/(m K), insulation "
+            f"{t.insulation_conductivity:g}, layer insulation {t.layer_insulation_conductivity:g}; "
+            f"operating point {point}; {'coupled through rho(T)' if t.coupled else 'one-way (coupled = false)'}")
 
 
 def command_check(args) -> int:

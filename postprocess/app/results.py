@@ -50,6 +50,8 @@ class Results:
       matrices (``racfield loss`` uses them for other currents)
     - ``document``: the whole results.json document (estimates, harmonics,
       MMF, warnings, mesh check, ...)
+    - ``thermal``: results.json's ``thermal`` (hot spot, per-turn and per-winding
+      temperatures in degC, the loss at temperature in W), None without ``[thermal]``
     """
 
     title: str
@@ -72,6 +74,11 @@ class Results:
     loss_matrix_w_per_a2: np.ndarray
     document: dict = field(repr=False)
     report: "Report" = field(repr=False)
+
+    @property
+    def thermal(self) -> dict | None:
+        """The thermal solution (``thermal`` of results.json), None without ``[thermal]``."""
+        return self.document.get("thermal")
 
     @classmethod
     def from_report(cls, report: "Report") -> "Results":

@@ -37,7 +37,7 @@ from racfield.geometry.turn_length import turn_lengths
 
 from .litz import rayleigh_permeability
 from .sweep import _Sweep, operating_solution, problem_for
-from .thermal import Convection, FixedTemperature, TemperatureField, solve_temperature, thermal_basis
+from .thermal import Convection, FixedTemperature, TemperatureField, ThermalSystem, thermal_basis
 
 #: thermal conductivity of the conductor metals, W/(m K) (common practice; pure annealed metals near 20 degC)
 METAL_CONDUCTIVITY = {"copper": 390.0, "aluminium": 237.0}
@@ -236,17 +236,16 @@ def solve_case_thermal(sweep: _Sweep, progress: Callable[[int, float], None] | N
     field solution."""
     case, thermal = sweep.case, sweep.case.thermal
     excitations, words, rms = operating_point(case)
-    basis = thermal_basis(sweep.window_mesh)
-    k = _conductivity(sweep, basis)
+    k = _conductivity(sweep, thermal_basis(sweep.window_mesh))
     fixed, convective = _boundaries(sweep)
     resistance = surface_resistance(sweep)
     lengths = turn_lengths(case, sweep.conductors).metres
     floor = min(t for t in (thermal.core_temperature, thermal.ambient) if t is not None)
     ceiling = thermal.max_temperature
 
-    def temperatures(density: np.ndarray) -> TemperatureField:
-        return solve_temperature(sweep.window_mesh, k, density, fixed=fixed, convective=convective,
-                                 radius_offset=case.axis_offset, surface_resistance=resistance)
+    system = ThermalSystem(sweep.window_mesh, k, fixed=fixed, convective=convective,
+                           radius_offset=case.axis_offset, surface_resistance=resistance)
+    temperatures = system.solve   # the conduction matrix does not change: one LU serves every iteration
 
     flat = np.full(len(sweep.conductors), case.model.temperature_c)
     iterates, images, history, losses = [], [], [], []

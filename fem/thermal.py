@@ -37,6 +37,7 @@ import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 from skfem import Basis, ElementTriP2, FacetBasis, MeshTri2
 
+from .ordering import nested_dissection
 from .forms import heat_load, test_integral, thermal_contact, thermal_robin, thermal_stiffness, volume_weight
 
 OUTSIDE = -10   #: the region beyond an outer boundary facet
@@ -267,13 +268,13 @@ def _weight(r0: float | None) -> dict:
     return {"r0": 0.0, "axisymmetric": 0.0} if r0 is None else {"r0": float(r0), "axisymmetric": 1.0}
 
 
-def _assemble(basis: Basis, k: np.ndarray, q: np.ndarray, convective: Sequence[Convection],
-              weight: dict, split: _Split) -> tuple[sp.csr_matrix, np.ndarray, list[tuple[FacetBasis, Convection]]]:
+def _assemble(basis: Basis, k: np.ndarray, convective: Sequence[Convection], weight: dict,
+              split: _Split) -> tuple[sp.csr_matrix, np.ndarray, list[tuple[FacetBasis, Convection]]]:
     """The matrix int k grad T . grad v dV + interface terms + sum int h T v dA
-    and the load int q v dV + sum int h T_amb v dA (W/m or W per degC and W/m
-    or W), in the extended numbering of ``split``."""
+    and the ambient load sum int h T_amb v dA (W/m or W per degC and W/m or
+    W), in the extended numbering of ``split``."""
     matrix = _local_matrix(thermal_stiffness, basis, split, k=k, **weight) + split.jump
-    load = _local_vector(heat_load, basis, split, q=q, **weight)
+    load = np.zeros(split.size)
     robins = []
     for condition in convective:
         facet_basis = FacetBasis(basis.mesh, basis.elem, facets=_facets(basis, condition.where))
@@ -301,16 +302,6 @@ def _fixed_dofs(basis: Basis, fixed: Sequence[FixedTemperature], split: _Split,
     return [np.nonzero(owner == i)[0] for i in range(len(fixed))], values
 
 
-def _solve(matrix: sp.csr_matrix, load: np.ndarray, values: np.ndarray) -> np.ndarray:
-    """Solve with T = ``values`` where they are not NaN: one sparse LU."""
-    fixed = ~np.isnan(values)
-    free = np.nonzero(~fixed)[0]
-    t = np.where(fixed, values, 0.0)
-    rhs = load[free] - matrix[free][:, fixed] @ t[fixed]
-    t[free] = splu(matrix[free][:, free].tocsc()).solve(rhs)
-    return t
-
-
 def _conductor_mean(basis: Basis, region: np.ndarray, t: np.ndarray, weight: dict, split: _Split) -> np.ndarray:
     """Mean temperature (degC) of each conductor region, weighted by area
     (planar) or volume (axisymmetric), from the conductors' own DOFs."""
@@ -332,53 +323,85 @@ def solve_temperature(window_mesh, conductivity: np.ndarray, heat: Heat, *,
                       convective: Convection | Sequence[Convection] | None = None,
                       radius_offset: float | None = None,
                       surface_resistance: np.ndarray | None = None) -> TemperatureField:
-    """Steady temperature of the mesh ``window_mesh`` (a
-    :class:`racfield.geometry.mesher.WindowMesh`, or any object with its
-    ``points``, ``triangles`` and ``region``).
+    """Steady temperature of the mesh ``window_mesh`` for the heat ``heat`` (q
+    in W/m^3, see :data:`Heat`); the other arguments as :class:`ThermalSystem`."""
+    return ThermalSystem(window_mesh, conductivity, fixed=fixed, convective=convective,
+                         radius_offset=radius_offset, surface_resistance=surface_resistance).solve(heat)
 
+
+class ThermalSystem:
+    """The conduction problem of one mesh, conductivity and boundary,
+    assembled and factorized once (one sparse LU); :meth:`solve` for each heat.
+
+    ``window_mesh``: a :class:`racfield.geometry.mesher.WindowMesh`, or any
+    object with its ``points``, ``triangles`` and ``region``.
     ``conductivity`` (nelements,) W/(m K) (see :func:`element_conductivity`),
     or (nelements, nqp) at the quadrature points of :func:`thermal_basis`;
-    ``heat`` q in W/m^3 (see :data:`Heat`); ``fixed``/``convective``: one
-    condition or a list; ``radius_offset`` None for planar, or r0 (m) with
-    r = x + r0 for an axisymmetric model; ``surface_resistance`` (Nc, 2)
-    m^2 K/W: a thin resistive layer on each conductor's surface, on its faces
-    whose normal lies along x and along y (see the module docstring; None or
-    zeros: none).  At least one fixed or convective condition must hold the
-    temperature level.  ``temperature`` and ``nodes`` then hold both sides'
-    values of a doubled DOF (the nodes repeated).
+    ``fixed``/``convective``: one condition or a list; ``radius_offset`` None
+    for planar, or r0 (m) with r = x + r0 for an axisymmetric model;
+    ``surface_resistance`` (Nc, 2) m^2 K/W: a thin resistive layer on each
+    conductor's surface, on its faces whose normal lies along x and along y
+    (see the module docstring; None or zeros: none).  At least one fixed or
+    convective condition must hold the temperature level.  A solution's
+    ``temperature`` and ``nodes`` hold both sides' values of a doubled DOF
+    (the nodes repeated).
     """
-    fixed = [fixed] if isinstance(fixed, FixedTemperature) else list(fixed or [])
-    convective = [convective] if isinstance(convective, Convection) else list(convective or [])
-    if not fixed and not convective:
-        raise ValueError("an adiabatic domain has no steady temperature: fix T or add convection")
-    basis = _basis(window_mesh)
-    conductivity = np.asarray(conductivity, dtype=float)
-    nqp = basis.X.shape[1]
-    if conductivity.shape == (basis.nelems,):
-        conductivity = np.repeat(conductivity[:, None], nqp, axis=1)
-    if (conductivity.shape != (basis.nelems, nqp) or not np.all(conductivity > 0)
-            or not np.isfinite(conductivity).all()):
-        raise ValueError(f"conductivity needs one positive W/(m K) value per element ({basis.nelems}) "
-                         f"or per quadrature point ({basis.nelems}, {nqp})")
-    weight = _weight(radius_offset)
-    q = _heat_at_quadrature(basis, heat)
-    region = np.asarray(window_mesh.region)
-    split = _split(basis, region, surface_resistance, weight)
-    matrix, load, robins = _assemble(basis, conductivity, q, convective, weight, split)
-    dofs, values = _fixed_dofs(basis, fixed, split, region)
-    t = _solve(matrix, load, values)
-    # heat out of a fixed boundary: the residual of its rows (consistent flux)
-    residual = load - matrix @ t
-    out_fixed = np.array([residual[d].sum() for d in dofs])
-    out_convective = np.array([
-        _convected_heat(facet_basis, t[:basis.N], condition, weight) for facet_basis, condition in robins])
-    hot = int(np.argmax(t))
-    nodes = basis.doflocs[:, split.origin]
-    return TemperatureField(
-        temperature=t, nodes=nodes, conductor_mean=_conductor_mean(basis, region, t, weight, split),
-        hot_spot=float(t[hot]), hot_spot_at=(float(nodes[0, hot]), float(nodes[1, hot])),
-        heat_generated=float(volume_weight.assemble(basis, f=q, **weight)),
-        heat_out_fixed=out_fixed, heat_out_convective=out_convective, element_dofs=split.ext)
+
+    def __init__(self, window_mesh, conductivity: np.ndarray, *,
+                 fixed: FixedTemperature | Sequence[FixedTemperature] | None = None,
+                 convective: Convection | Sequence[Convection] | None = None,
+                 radius_offset: float | None = None, surface_resistance: np.ndarray | None = None) -> None:
+        fixed = [fixed] if isinstance(fixed, FixedTemperature) else list(fixed or [])
+        convective = [convective] if isinstance(convective, Convection) else list(convective or [])
+        if not fixed and not convective:
+            raise ValueError("an adiabatic domain has no steady temperature: fix T or add convection")
+        self.basis = basis = _basis(window_mesh)
+        conductivity = np.asarray(conductivity, dtype=float)
+        nqp = basis.X.shape[1]
+        if conductivity.shape == (basis.nelems,):
+            conductivity = np.repeat(conductivity[:, None], nqp, axis=1)
+        if (conductivity.shape != (basis.nelems, nqp) or not np.all(conductivity > 0)
+                or not np.isfinite(conductivity).all()):
+            raise ValueError(f"conductivity needs one positive W/(m K) value per element ({basis.nelems}) "
+                             f"or per quadrature point ({basis.nelems}, {nqp})")
+        self.weight = _weight(radius_offset)
+        self.region = np.asarray(window_mesh.region)
+        self.split = _split(basis, self.region, surface_resistance, self.weight)
+        self.matrix, self.ambient_load, self.robins = _assemble(basis, conductivity, convective, self.weight,
+                                                                self.split)
+        self.dofs, values = _fixed_dofs(basis, fixed, self.split, self.region)
+        held = ~np.isnan(values)
+        self.free = np.nonzero(~held)[0]
+        self.base = np.where(held, values, 0.0)
+        self.lift = self.matrix[self.free][:, held] @ self.base[held]
+        # nested dissection (as the field problem), the pivots kept on the diagonal:
+        # the matrix is symmetric positive definite
+        reduced = self.matrix[self.free][:, self.free]
+        self.order = nested_dissection(reduced)
+        self.factor = splu(reduced[self.order][:, self.order].tocsc(), permc_spec="NATURAL",
+                           diag_pivot_thresh=0.0, options={"SymmetricMode": True})
+
+    def solve(self, heat: Heat) -> TemperatureField:
+        """The steady temperature for the heat ``heat`` (q in W/m^3, see :data:`Heat`)."""
+        basis, split, weight = self.basis, self.split, self.weight
+        q = _heat_at_quadrature(basis, heat)
+        load = _local_vector(heat_load, basis, split, q=q, **weight) + self.ambient_load
+        t = self.base.copy()
+        free = np.empty(len(self.free))
+        free[self.order] = self.factor.solve((load[self.free] - self.lift)[self.order])
+        t[self.free] = free
+        # heat out of a fixed boundary: the residual of its rows (consistent flux)
+        residual = load - self.matrix @ t
+        out_fixed = np.array([residual[d].sum() for d in self.dofs])
+        out_convective = np.array([
+            _convected_heat(facet_basis, t[:basis.N], condition, weight) for facet_basis, condition in self.robins])
+        hot = int(np.argmax(t))
+        nodes = basis.doflocs[:, split.origin]
+        return TemperatureField(
+            temperature=t, nodes=nodes, conductor_mean=_conductor_mean(basis, self.region, t, weight, split),
+            hot_spot=float(t[hot]), hot_spot_at=(float(nodes[0, hot]), float(nodes[1, hot])),
+            heat_generated=float(volume_weight.assemble(basis, f=q, **weight)),
+            heat_out_fixed=out_fixed, heat_out_convective=out_convective, element_dofs=split.ext)
 
 
 def _convected_heat(facet_basis: FacetBasis, t: np.ndarray, condition: Convection, weight: dict) -> float:

@@ -266,3 +266,14 @@ def test_waveform_heat_is_the_harmonic_loss_sum(name):
         assert thermal["windings"][winding]["flat_rac_ohm"] == pytest.approx(w["total_loss_w"] / w["rms_a"] ** 2,
                                                                              rel=rel)
     assert thermal["heat_balance_error"] < 1e-8   # first law
+
+
+def test_operating_frequency_above_the_sweep_sizes_the_mesh():
+    # the heat at [thermal] frequency is a solved field: its mesh must be sized for its skin depth
+    # (README, Numerics: the mesh follows the skin depth at the highest solved frequency), so the
+    # operating point above a low sweep gives the loss a sweep at that frequency gives (common practice)
+    thermal = {"core_temperature": "80 degC", "coupled": False, "frequency": "2 MHz"}
+    low = racfield.solve(racfield.load_case(two_windings(thermal=thermal, frequencies=("10 kHz",)))).document
+    at = racfield.solve(racfield.load_case(two_windings(frequencies=("2 MHz",)))).document
+    assert low["thermal"]["flat_total_loss_w"] == pytest.approx(at["total_loss_w"][0], rel=1e-9)
+    assert low["mesh"]["unknowns"] == at["mesh"]["unknowns"]

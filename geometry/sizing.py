@@ -66,7 +66,8 @@ def check_mesh_bound(case: Case, conductors: list[Conductor]) -> None:
     edges = surface_edges(conductors, sizing)
     if edges > MAX_SURFACE_EDGES:
         source = ("mesh.frequency" if case.mesh.frequency is not None else
-                  "waveform.max_harmonic" if case.waveform is not None else "sweep")
+                  "waveform.max_harmonic" if case.waveform is not None else
+                  "thermal.frequency" if case.mesh_frequency > max(case.frequencies) else "sweep")
         raise CaseError(source, f"the mesh at {case.mesh_frequency:.4g} Hz (skin depth "
                         f"{sizing.skin_depth * 1e6:.3g} um) would put about {edges:.3g} element "
                         f"edges on the conductor surfaces, more than the {MAX_SURFACE_EDGES} this machine class can solve",

@@ -168,6 +168,33 @@ def winding_waveform(draw):
 
 
 @st.composite
+def thermal_table(draw, boundary: str, waveforms: bool):
+    """[thermal]: the boundary the window allows (core walls, far convection or both), a fill,
+    and an operating frequency unless the waveforms set the operating point."""
+    t: dict = {}
+    core = boundary == "ideal-core" or (boundary in ("core", "open-wall") and draw(st.booleans()))
+    far = boundary != "ideal-core" and (not core or draw(st.booleans()))
+    if core:
+        t["core_temperature"] = draw(q("temperature", -40.0, 150.0))
+    if far:
+        t["h"], t["ambient"] = draw(st.floats(1.0, 1000.0)), draw(q("temperature", -40.0, 150.0))
+    if draw(st.booleans()):
+        t["fill"] = draw(st.sampled_from(["air", "varnish", "potting"]))
+    elif draw(st.booleans()):
+        t["conductivity"] = draw(st.sampled_from([0.1, "0.3 W/(m K)", "2 W/m/K"]))
+    for key in ("insulation_conductivity", "core_conductivity"):
+        if draw(st.booleans()):
+            t[key] = draw(st.floats(0.01, 50.0))
+    if not waveforms:
+        t["frequency"] = draw(q("frequency", 1e3, 1e6))
+    if draw(st.booleans()):
+        t["coupled"] = draw(st.booleans())
+    if draw(st.booleans()):
+        t["max_temperature"] = "400 degC"
+    return t
+
+
+@st.composite
 def valid_docs(draw):
     """A case document from the grammar of the real keys (many of them valid cases)."""
     doc: dict = {}
@@ -282,6 +309,8 @@ def valid_docs(draw):
             doc["gap"] = [{"leg": leg, "length": draw(q("length", 0.05 * MM, 1 * MM)),
                            "at": draw(q("length", 1.0 * MM, height - 1.0 * MM))}
                           for leg in draw(st.permutations(["centre", "outer"]))[:gaps]]
+    if draw(st.integers(0, 3)) == 0:
+        doc["thermal"] = draw(thermal_table(boundary, waveforms and not idle))
     if draw(st.integers(0, 4)) == 0:
         doc["mesh"] = {"density": draw(st.floats(0.5, 2.0)), "far_radius_factor": draw(st.floats(2.0, 8.0))}
     return doc
@@ -307,7 +336,8 @@ odd_values = st.one_of(st.sampled_from(SPECIAL_NUMBERS), st.sampled_from(ODD_STR
                        st.text(max_size=30))
 odd_keys = st.one_of(st.text(max_size=12), st.sampled_from(
     ["widht", "hieght", "diametre", "turn", "frequency", "frequencies", "shape", "file", "layer", "winding",
-     "at", "name", "conductor", "variant", "period", "core", "gap", "", " ", "\u2028", "a.b"]))
+     "at", "name", "conductor", "variant", "period", "core", "gap", "thermal", "fill", "h", "", " ",
+     "\u2028", "a.b"]))
 
 
 def locations(doc, prefix: tuple = ()) -> list[tuple]:

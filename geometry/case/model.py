@@ -311,8 +311,12 @@ class Case:
 
     @property
     def mesh_frequency(self) -> float:
-        """Hz the mesh is sized for: ``[mesh] frequency``, else the highest solved frequency."""
-        return self.mesh.frequency if self.mesh.frequency is not None else max(self.frequencies)
+        """Hz the mesh is sized for: ``[mesh] frequency``, else the highest solved frequency (the
+        sweep's, or ``[thermal] frequency``, the operating point's, when higher)."""
+        if self.mesh.frequency is not None:
+            return self.mesh.frequency
+        operating = self.thermal.frequency if self.thermal is not None and self.thermal.frequency is not None else 0.0
+        return max(max(self.frequencies), operating)
 
 
 def conductor_specs(case: Case, name: str) -> list[tuple[str, ConductorSpec]]:

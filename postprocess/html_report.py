@@ -9,9 +9,6 @@ policy forbids it).  Every text that comes from the case is HTML-escaped.
 
 from __future__ import annotations
 
-import base64
-import html
-import math
 import re
 from pathlib import Path
 
@@ -20,11 +17,12 @@ from racfield.geometry.case.units import format_frequency
 
 from . import results_file
 from .atomic import replace_text
+from .html_parts import Page as _Page, cell as _cell, eng, esc, image as _image, table as _table
+from .html_thermal import temperature_section
 from .validation_status import VALIDATION, case_features
 
 REPORT_NAME = "report.html"
 METHOD_NAMES = {"dowell": "Dowell", "ferreira": "Ferreira"}
-PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 
 CSS = """
 body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, "DejaVu Sans", sans-serif; color: #1d1d1b;
@@ -65,11 +63,6 @@ code { font-size: 0.9em; background: #f4f4f2; padding: 0 0.2em; }
 CSP = "default-src 'none'; img-src data:; style-src 'unsafe-inline'"
 
 
-def esc(value: object) -> str:
-    """HTML-escaped text (quotes too, safe in attributes)."""
-    return html.escape(str(value), quote=True)
-
-
 def _markup(text: str) -> str:
     """README-style ``*italics*`` and backtick code in an escaped text."""
     escaped = esc(text)
@@ -78,22 +71,7 @@ def _markup(text: str) -> str:
 
 
 # ---------------------------------------------------------------------------
-# numbers
-
-_PREFIXES = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "\u00b5"), (1e-9, "n"), (1e-12, "p")]
-
-
-def eng(value: float | None, unit: str, digits: int = 4) -> str:
-    """``0.01234, "Ω"`` -> ``12.34 mΩ``; None or not finite -> an en dash."""
-    if value is None or not isinstance(value, (int, float)) or not math.isfinite(value):
-        return "\u2013"
-    if value == 0:
-        return f"0 {unit}"
-    for scale, prefix in _PREFIXES:
-        if abs(value) >= scale * 0.9995:
-            return f"{value / scale:.{digits}g} {prefix}{unit}"
-    scale, prefix = _PREFIXES[-1]
-    return f"{value / scale:.{digits}g} {prefix}{unit}"
+# numbers (eng and the building blocks: html_parts)
 
 
 def _freq(f: float) -> str:
@@ -121,61 +99,6 @@ def _at(values, i: int):
 def picks(count: int) -> list[int]:
     """Indices of the lowest, middle and highest frequency (fewer when there are fewer)."""
     return sorted({0, count // 2, count - 1}) if count else []
-
-
-# ---------------------------------------------------------------------------
-# building blocks
-
-
-class _Page:
-    """Sections in order, with a table of contents."""
-
-    def __init__(self) -> None:
-        self.parts: list[str] = []
-        self.toc: list[tuple[int, str, str]] = []
-
-    def heading(self, level: int, anchor: str, title: str) -> None:
-        self.toc.append((level, anchor, title))
-        self.parts.append(f'<h{level} id="{esc(anchor)}">{esc(title)}</h{level}>')
-
-    def add(self, text: str) -> None:
-        self.parts.append(text)
-
-    def nav(self) -> str:
-        items = []
-        for level, anchor, title in self.toc:
-            if level == 2:
-                items.append(f'<li><a href="#{esc(anchor)}">{esc(title)}</a></li>')
-        return f'<nav aria-label="contents"><strong>Contents</strong><ol>{"".join(items)}</ol></nav>'
-
-
-def _image(folder: Path, name: str, alt: str, caption: str, absent: str) -> str:
-    """The PNG ``folder/name`` as a data URI in a figure, or the ``absent`` sentence."""
-    path = folder / name
-    try:
-        data = path.read_bytes()
-    except OSError:
-        data = b""
-    if not data.startswith(PNG_SIGNATURE):
-        return f'<p class="missing">{esc(absent)} ({esc(name)} is not in this results folder.)</p>'
-    uri = "data:image/png;base64," + base64.b64encode(data).decode("ascii")
-    return (f'<figure><img src="{uri}" alt="{esc(alt)}">'
-            f"<figcaption>{esc(caption)} <code>{esc(name)}</code></figcaption></figure>")
-
-
-def _cell(tag: str, text: str, numeric: bool) -> str:
-    """One escaped table cell."""
-    return f'<{tag} class="num">{esc(text)}</{tag}>' if numeric else f"<{tag}>{esc(text)}</{tag}>"
-
-
-def _table(head: list[str], rows: list[list[str]], numeric: set[int] = frozenset()) -> str:
-    """A table of plain texts (all escaped); columns in ``numeric`` right-aligned."""
-    out = ['<div class="scroll"><table><thead><tr>' + "".join(_cell("th", h, i in numeric) for i, h in enumerate(head))
-           + "</tr></thead><tbody>"]
-    for row in rows:
-        out.append("<tr>" + "".join(_cell("td", c, i in numeric) for i, c in enumerate(row)) + "</tr>")
-    out.append("</tbody></table></div>")
-    return "".join(out)
 
 
 # ---------------------------------------------------------------------------
@@ -338,6 +261,7 @@ def _folder_sections(page: _Page, doc: dict, folder: Path, prefix: str, level: i
     page.add(_image(folder, "current_density.png", "current density magnitude and flux lines",
                     f"|J| and flux lines at {_freq(doc['frequencies_hz'][-1])}.", "No field map."))
     _conductor_losses(page, doc, folder, prefix, level)
+    temperature_section(page, doc, folder, prefix, level)
 
 
 def _validation(page: _Page, features: set[str]) -> None:

@@ -58,9 +58,11 @@ def _legs_without_gaps(y0: float, y1: float, gaps: list[tuple[float, float]]) ->
     return pieces
 
 
-def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
+def draw_walls(ax: Axes, report: Report, s_mm: float, *, core_face=CORE_BODY, window_face=WINDOW_FACE) -> list:
     """Walls, core body, symmetry plane or axis; sets the view limits.  Returns
-    legend handles for what was drawn."""
+    legend handles for what was drawn.  ``core_face``, ``window_face``: the
+    fill of the core body and of an ideal-core window ("none": outlines only,
+    over a map drawn beneath)."""
     case = report.case
     window = case.window
     w_mm, h_mm = window.width * 1e3, window.height * 1e3
@@ -78,7 +80,7 @@ def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
         blocks += [(left, y0, s_mm - left, y1 - y0) for y0, y1 in _legs_without_gaps(0.0, h_mm, centre_gaps)]
         blocks += [(s_mm + w_mm, y0, right - s_mm - w_mm, y1 - y0) for y0, y1 in _legs_without_gaps(0.0, h_mm, outer_gaps)]
         for x, y, dx, dy in blocks:
-            ax.add_patch(Rectangle((x, y), dx, dy, facecolor=CORE_BODY, edgecolor="0.45", linewidth=0.6, zorder=1))
+            ax.add_patch(Rectangle((x, y), dx, dy, facecolor=core_face, edgecolor="0.45", linewidth=0.6, zorder=1))
         handles.append(Patch(facecolor=CORE_BODY, edgecolor="0.45",
                              label=f"core, \u03bcr = {core.relative_permeability:g}"
                              + (f", {len(core.gaps)} gap{'s' if len(core.gaps) != 1 else ''}" if core.gaps else "")))
@@ -94,7 +96,7 @@ def _draw_walls(ax: Axes, report: Report, s_mm: float) -> list:
         wall = 0.06 * max(w_mm, h_mm)
         ax.add_patch(Rectangle((s_mm - wall, -wall), w_mm + 2 * wall, h_mm + 2 * wall, facecolor=CORE_GREY,
                                edgecolor="none", zorder=0))
-        ax.add_patch(Rectangle((s_mm, 0.0), w_mm, h_mm, facecolor=WINDOW_FACE, edgecolor="0.3", linewidth=0.8,
+        ax.add_patch(Rectangle((s_mm, 0.0), w_mm, h_mm, facecolor=window_face, edgecolor="0.3", linewidth=0.8,
                                zorder=0.5))
         handles.append(Patch(facecolor=CORE_GREY, label="ideal-core walls (\u03bcr \u2192 \u221e)"))
         ax.set_xlim((-wall if show_axis else s_mm - wall), s_mm + w_mm + wall)
@@ -184,7 +186,7 @@ def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool 
         ax = figure.add_subplot(1, len(sections), k + 1)
         axes.append(ax)
         ax.set_facecolor("white")
-        drawn = _draw_walls(ax, SimpleNamespace(case=section), s_mm)
+        drawn = draw_walls(ax, SimpleNamespace(case=section), s_mm)
         handles += [h for h in drawn if h.get_label() not in [x.get_label() for x in handles]]
         if k == 0:
             (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()

@@ -200,11 +200,25 @@ def _heat(sweep: _Sweep, problem, excitations: list[_Excitation]) -> tuple[np.nd
     region = problem.region
     for e in excitations:
         solution = operating_solution(sweep, e.frequency, e.currents, problem)
-        density += problem.loss_density(e.frequency, solution.voltage_per_m, solution.potential)
-        loss += solution.loss_per_m
+        part = problem.loss_density(e.frequency, solution.voltage_per_m, solution.potential)
+        part_loss = solution.loss_per_m
+        if e.frequency == 0.0:
+            # at DC the loss is I^2 Rdc from the true conductor geometry, as the
+            # sweep's Rdc and the waveforms' DC part: scale out the mesh's area error
+            scale = sweep.rdc * (_resistivity_now(problem) / sweep.rho) * problem.conductance
+            scale[problem.stranded] = 1.0
+            part = part * np.where(region >= 0, scale[np.maximum(region, 0)], 1.0)[:, None]
+            part_loss = part_loss * scale
+        density += part
+        loss += part_loss
         for k in np.nonzero(problem.stranded)[0]:   # a homogenized bundle: its loss spread evenly
             density[region == k] += solution.loss_per_m[k] / problem.areas[k]
     return density, loss
+
+
+def _resistivity_now(problem) -> np.ndarray:
+    """rho (ohm*m) of every conductor of an assembled ``problem``."""
+    return 1.0 / problem.sigma_k
 
 
 def _anderson(iterates: list[np.ndarray], images: list[np.ndarray]) -> np.ndarray:

@@ -18,6 +18,7 @@ any entry matches, an entry ``"a+b"`` needing all of its parts:
 * ``"dowell"`` / ``"ferreira"``: that hand estimate is reported
 * ``"waveform"``: winding currents given as waveforms (harmonics)
 * ``"parallel"``: windings with parallel conductors
+* ``"thermal"``: a thermal solution (``[thermal]``)
 """
 
 from __future__ import annotations
@@ -25,7 +26,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 FEATURES = ("all", "round", "rect", "open", "core", "inductance", "multi-winding", "axisymmetric", "mmf",
-            "dowell", "ferreira", "waveform", "parallel")
+            "dowell", "ferreira", "waveform", "parallel", "thermal")
 
 
 @dataclass(frozen=True)
@@ -325,6 +326,66 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         '0.0005 %',
         applies_to=('round',)),
     ValidationCheck(
+        'Thermal: slab with uniform generation between isothermal walls (a foil across the window), T_max - T_wall = q L^2 / (8 k); a foil between fill layers',
+        'H. S. Carslaw & J. C. Jaeger, *Conduction of Heat in Solids*, 1959; F. P. Incropera & D. P. DeWitt, *Fundamentals of Heat and Mass Transfer* (plane wall with generation)',
+        '0.1 %',
+        '3e-13',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        'Thermal: long cylinder with uniform generation, centre rise q a^2 / (4 k), mean rise q a^2 / (8 k), planar disk and axisymmetric',
+        'Carslaw & Jaeger 1959; Incropera & DeWitt',
+        '0.1 %',
+        '2.4e-7 (planar), 5e-13 (axisymmetric)',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        'Thermal: composite wall of copper, enamel and air, series resistances sum(t_i / k_i); a slab with convection on both faces',
+        'Incropera & DeWitt (composite wall; plane wall with convection)',
+        '0.1 %',
+        '1.5e-14; 1.1e-12',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        "Thermal: heat out through the boundary = loss in (solver, and every thermal case); the field's loss density integrates to the conductor losses",
+        "first law of thermodynamics; Poynting's theorem",
+        '1e-8; 1e-10',
+        '3e-12 (cases: 4e-10); < 1e-10',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        'Thermal: insulated wire (enamel shell, 1.2 mm over 1 mm, in potting) with a convective far circle, mean-temperature rise against the series of shell, fill, surface and wire resistances',
+        'cylindrical shell ln(r2/r1) / (2 pi k), Incropera & DeWitt ch. 3',
+        '1e-4',
+        '-3.4e-5',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        "Coupled rho(T): one wire at DC, T = T_amb + I^2 R(T) R_th with R linear in T, closed form; with the analytic R_th and with the model's own",
+        "Ohm's law, IEC 60028 (rho(T)); Incropera & DeWitt (R_th)",
+        '1e-4; 1e-6',
+        '-3.7e-5; 6e-12 (4 field solutions)',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        'Coupled rho(T) past the runaway limit (I^2 R0 alpha R_th = 1.2): reported as no steady state, the run finishing',
+        "the fixed point's existence condition (closed form above)",
+        'reported',
+        'no steady state below 400 degC',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        '`coupled = false`: losses at the flat temperature against the same case without `[thermal]`; the sweep unchanged',
+        'the field problem does not depend on the thermal one',
+        '1e-12',
+        '< 1e-12; identical',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        'Waveform heat: the summed loss densities of DC and the harmonics against the harmonic losses',
+        'orthogonality of sines over a period (Parseval)',
+        '1e-9',
+        '6e-15',
+        applies_to=('thermal',)),
+    ValidationCheck(
+        'Maximum principle: every conductor, map value and the hot spot at or above the boundary temperature',
+        'Carslaw & Jaeger 1959 (with q >= 0 the minimum lies on the boundary)',
+        '–',
+        'holds',
+        applies_to=('thermal',)),
+    ValidationCheck(
         'Every case in `cases/` runs; Rdc against rho l N/A; low-frequency Rac/Rdc against the series of the Bessel and Dowell solutions; round-wire turns never below the isolated-wire skin loss',
         'IEC 60028; Dowell 1966; J. A. Ferreira, "Improved analytical modeling of conductive losses in magnetic components", IEEE Trans. Power Electronics, 1994 (orthogonality of skin and proximity loss)',
         '0.05 %',
@@ -361,4 +422,6 @@ def case_features(document: dict) -> set[str]:
         features.add("waveform")
     if document.get("parallel"):
         features.add("parallel")
+    if document.get("thermal"):
+        features.add("thermal")
     return features

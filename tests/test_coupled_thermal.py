@@ -30,9 +30,8 @@ Measured (density 2): the coupled mean temperature of the 1 mm wire in potting
 differs from the closed form with the analytic R_th by -3.7e-5 relative (its
 rise by -5e-5), from the closed form with the model's own R_th by < 1e-9; the
 insulated wire's rise differs from the series resistances by -3.4e-5.  The
-waveform heat equals the harmonic losses to 6e-15 without DC and to 4.2e-6
-with DC (the harmonics' DC part uses the true wire area, the heat the meshed
-one).
+waveform heat equals the harmonic losses to 6e-15 without DC and with DC (the
+heat at 0 Hz is I^2 Rdc of the true wire area, as the harmonics' DC part).
 """
 
 from __future__ import annotations
@@ -122,8 +121,8 @@ def test_coupled_fixed_point_against_the_closed_form(wire_solutions):
     radius, flat, coupled = wire_solutions
     current = 40.0
     assert flat.converged and flat.steady_state and flat.iterations == 1
-    # the flat loss is I^2 R20 per metre (Ohm's law, IEC 60028), to the mesh's area
-    assert flat.loss_w["a"] == pytest.approx(loss_at(current, 20.0), rel=1e-6)
+    # the flat loss is I^2 R20 per metre (Ohm's law, IEC 60028), the true area's at DC
+    assert flat.loss_w["a"] == pytest.approx(loss_at(current, 20.0), rel=1e-10)
 
     # (a) the analytic R_th (Incropera & DeWitt ch. 3; Carslaw & Jaeger): discretization error only
     expected = fixed_point(current, analytic_rth(radius))
@@ -257,9 +256,8 @@ def test_waveform_heat_is_the_harmonic_loss_sum(name):
     document = racfield.solve(racfield.load_case(doc)).document
     thermal, harmonics = document["thermal"], document["harmonics"]
     assert thermal["operating_point"].startswith("the current waveforms: " + ("DC and" if name == "with_dc" else ""))
-    # the harmonics' DC part is I_dc^2 Rdc with the true area (IEC 60028); the thermal heat at 0 Hz is
-    # the meshed wire's, whose area differs by the mesh's few 1e-6: that tolerance with DC, 1e-9 without
-    rel = 1e-5 if name == "with_dc" else 1e-9
+    # the harmonics' DC part is I_dc^2 Rdc with the true area (IEC 60028), and so is the heat at 0 Hz
+    rel = 1e-9
     harmonic_total = sum(w["total_loss_w"] for w in harmonics["windings"].values())
     print(f"\nwaveform {name}: thermal heat {thermal['flat_total_loss_w']:.12g} W, harmonic losses "
           f"{harmonic_total:.12g} W, relative {thermal['flat_total_loss_w'] / harmonic_total - 1:+.2e}")

@@ -71,7 +71,10 @@ def _isotherms(ax: Axes, merged: Triangulation, values: np.ndarray, low: float, 
         v = v[(v[:, 0] >= x0 + inset_x) & (v[:, 0] <= x1 - inset_x) & (v[:, 1] >= y0 + inset_y)
               & (v[:, 1] <= y1 - inset_y)]
         if len(v):
-            places.append(tuple(v[np.argmax(v[:, 0] - 0.05 * np.abs(v[:, 1] - target))]))
+            place = v[np.argmax(v[:, 0] - 0.05 * np.abs(v[:, 1] - target))]
+            # labels of isotherms that come close there would overlap: keep the first
+            if all(np.hypot((place[0] - p[0]) / (x1 - x0), (place[1] - p[1]) / (y1 - y0)) > 0.08 for p in places):
+                places.append(tuple(place))
     texts = ax.clabel(lines, fmt=_label_format(levels), fontsize=7, inline=False, manual=places or False)
     for text in texts:
         text.set_rotation(0)

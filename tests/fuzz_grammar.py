@@ -433,12 +433,15 @@ def _is_table_list(value) -> bool:
 
 def to_toml(doc: dict) -> str:
     """Top-level keys, then [tables], then [[arrays of tables]] (nested ones as [[a.b]])."""
+    # a key whose value is None is absent (as the loader reads a dict): TOML has no None
     lines = [f"{toml_key(k)} = {toml_value(v)}" for k, v in doc.items()
-             if not isinstance(v, dict) and not _is_table_list(v)]
+             if v is not None and not isinstance(v, dict) and not _is_table_list(v)]
 
     def table_body(name: str, table: dict) -> None:
         nested = []
         for k, v in table.items():
+            if v is None:
+                continue
             if _is_table_list(v) and name:
                 nested.append((k, v))
             else:

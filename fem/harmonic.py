@@ -42,6 +42,25 @@ def _factorize(matrix: sp.spmatrix):
                          panel_size=12, options={"SymmetricMode": True})
 
 
+def trailing_schur(lu, n: int) -> np.ndarray | None:
+    """The Schur complement over the unknowns after the first ``n`` (in their
+    own order), read from the trailing block of the SuperLU factors ``lu`` of
+    a matrix whose last unknowns were ordered last (no solves); None when
+    SuperLU's column postorder moved them (a field part that is not connected)."""
+    # SuperLU postorders the columns; the trailing unknowns stay last
+    # when the field part is connected (they are ancestors of all of it)
+    tail_r, tail_c = lu.perm_r[n:], lu.perm_c[n:]
+    if not ((tail_r >= n).all() and (tail_c >= n).all()):
+        return None
+    u22 = lu.U[n:, n:].toarray()
+    if np.array_equal(lu.perm_r, lu.perm_c):
+        # symmetric matrix, no pivoting: L = U^T diag(U)^-1
+        block = u22.T @ (u22 / np.diag(u22)[:, None])
+    else:
+        block = lu.L[n:, n:].toarray() @ u22
+    return block[np.ix_(tail_r - n, tail_c - n)]
+
+
 def backward_error(matrix: sp.spmatrix, z: np.ndarray, rhs: np.ndarray) -> float:
     """The componentwise relative backward error of a solution ``z`` of
     ``matrix`` z = ``rhs`` (columns taken together): max over rows of
@@ -140,18 +159,10 @@ class BorderedFactorization:
     @cached_property
     def schur(self) -> np.ndarray:
         """Sigma from the trailing block of the factors (no solves)."""
-        n, nc, lu = self.n, self.nc, self.lu
-        # SuperLU postorders the columns; the conductor unknowns stay last
-        # when the field part is connected (they are ancestors of all of it)
-        tail_r, tail_c = lu.perm_r[n:], lu.perm_c[n:]
-        if (tail_r >= n).all() and (tail_c >= n).all():
-            u22 = lu.U[n:, n:].toarray()
-            if np.array_equal(lu.perm_r, lu.perm_c):
-                # symmetric matrix, no pivoting: L = U^T diag(U)^-1
-                block = u22.T @ (u22 / np.diag(u22)[:, None])
-            else:
-                block = lu.L[n:, n:].toarray() @ u22
-            return block[np.ix_(tail_r - n, tail_c - n)]
+        n, nc = self.n, self.nc
+        block = trailing_schur(self.lu, n)
+        if block is not None:
+            return block
         # general case: Sigma^-1 from nc solves
         rhs = np.zeros((n + nc, nc), dtype=complex)
         rhs[n:] = np.eye(nc)

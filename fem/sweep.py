@@ -86,6 +86,7 @@ class SweepResult:
     sections: dict | None = None
     end_weights: np.ndarray | None = None   #: (Nc,) each conductor's share of its length in the end section
     thermal: object | None = None   #: the thermal solution (:class:`racfield.fem.coupled_thermal.ThermalResult`)
+    capacitance: object | None = None   #: the electrostatic solution (:class:`racfield.fem.capacitance.CapacitanceResult`)
 
 
 @dataclass

@@ -26,6 +26,7 @@ so that everything downstream multiplies by the same turn length as before.
 
 from __future__ import annotations
 
+import time
 from dataclasses import replace
 from typing import Callable
 
@@ -36,6 +37,7 @@ from racfield.geometry.turn_length import TurnLengths, turn_lengths
 
 from .parallel import basis_impedance, sharing
 from . import sweep as single
+from .capacitance import solve_case_capacitance
 from .coupled_thermal import solve_case_thermal
 from .sweep import PointResult, SweepResult
 
@@ -95,11 +97,18 @@ def run_case_sweep(case: Case, progress: Callable[[int, int, float], None] | Non
     whole).  The result carries both sections in ``sections``."""
     if case.end_turns is None:
         finish = solve_case_thermal if case.thermal is not None else None
-        return single.run_sweep(case, progress=progress, method=method, done=done, on_point=on_point,
-                                finish=finish)
-    window = single.run_sweep(window_section(case), progress=progress, method=method, done=done, on_point=on_point)
-    end = single.run_sweep(end_section(case), method=method)
-    turns = turn_lengths(case, window.conductors)
-    weights = end_weights(case, turns.metres)
-    whole = combine(window, end, weights, turns, np.array([w.phasor for w in case.windings]))
-    return replace(whole, sections={"window": window, "end": end}, end_weights=weights)
+        result = single.run_sweep(case, progress=progress, method=method, done=done, on_point=on_point,
+                                  finish=finish)
+    else:
+        window = single.run_sweep(window_section(case), progress=progress, method=method, done=done,
+                                  on_point=on_point)
+        end = single.run_sweep(end_section(case), method=method)
+        turns = turn_lengths(case, window.conductors)
+        weights = end_weights(case, turns.metres)
+        whole = combine(window, end, weights, turns, np.array([w.phasor for w in case.windings]))
+        result = replace(whole, sections={"window": window, "end": end}, end_weights=weights)
+    if case.dielectric is not None:
+        start = time.perf_counter()
+        result.capacitance = solve_case_capacitance(case, result.conductors)
+        result.timings["capacitance_s"] = time.perf_counter() - start
+    return result

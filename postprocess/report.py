@@ -22,6 +22,7 @@ from racfield.geometry.turn_length import TurnLengths, turn_lengths
 from .estimates import hand_estimates
 from .harmonics import harmonic_losses, harmonics_document
 from .sections import sections_document
+from .capacitance import capacitance_document
 from .thermal import thermal_document
 from .impedance import leakage, magnetizing, winding_loss_matrices, winding_matrices
 
@@ -91,6 +92,11 @@ class Report:
     def thermal(self) -> dict | None:
         """``thermal`` of results.json (None without [thermal]; computed once)."""
         return thermal_document(self.case, self.sweep.thermal, self.sweep.conductors)
+
+    @cached_property
+    def capacitance(self) -> dict | None:
+        """``capacitance`` of results.json (None without [dielectric]; computed once)."""
+        return capacitance_document(self.case, self.sweep.capacitance, self.sweep.conductors)
 
     @property
     def total_loss_w(self) -> list[float]:
@@ -172,6 +178,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         **({"harmonics": h} if not partial and (h := harmonics_document(report.harmonics)) else {}),
         **({"sections": report.sections} if report.sections else {}),
         **({"thermal": report.thermal} if not partial and report.thermal else {}),
+        **({"capacitance": report.capacitance} if not partial and report.capacitance else {}),
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
         "warnings": [dict(w) for w in sweep.warnings],

@@ -25,6 +25,7 @@ from ..materials import ALIASES, MATERIALS
 from .study import VARIANT_KEY, StudyPoint, point_document, study_points
 from .table import Table, list_of_tables
 from .thermal_keys import read_thermal
+from .dielectric_keys import read_dielectric
 
 MAX_DEPTH = 16  #: nesting of tables and arrays a case may have (waveform samples and variant conductors reach 6)
 
@@ -71,8 +72,9 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
         waveform = read_winding_waveform(t, settings, path, allow_outside_files)
         current = t.quantity("current", "current", 1.0, nonnegative=True)
         phase = t.quantity("phase", "angle", 0.0)
+        start = t.text("start", "inner", ("inner", "outer"))
         t.close()
-        windings.append(Winding(name, mat, current, phase, waveform))
+        windings.append(Winding(name, mat, current, phase, waveform, start))
     if not windings:
         raise CaseError("winding", "no windings", 'add a [[winding]] table with name = "primary"')
     wave_notes: tuple[str, ...] = ()
@@ -90,6 +92,7 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     core, centre_leg = read_core(top, window, model)
     end_turns = read_end_turns(top, model)
     thermal = read_thermal(top, window, frequencies, settings is not None)
+    dielectric = read_dielectric(top, names)
     if thermal is not None and end_turns is not None:
         raise CaseError("thermal", "is not solved together with [end_turns] yet (the end turns' heat has no 2-D path)",
                         "remove [end_turns] for the thermal solution, or [thermal] for the end-turn losses")
@@ -100,7 +103,8 @@ def _parse(doc: dict, path: str, allow_outside_files: bool = False) -> Case:
     case = Case(title, model, frequencies, window, tuple(windings), tuple(layers), tuple(placed),
                 mesh, path, core, model_notes(model) + wave_notes, tuple(variants), compare_frequency,
                 parallel=tuple(parallel), waveform=settings, allow_outside_files=allow_outside_files,
-                centre_leg=centre_leg, end_turns=end_turns, thermal=thermal)
+                centre_leg=centre_leg, end_turns=end_turns, thermal=thermal,
+                dielectric=dielectric)
     for arrangement in variant_cases(case):
         check_arrangement(arrangement)
     return case

@@ -78,6 +78,7 @@ class Winding:
     current: float = 1.0          #: A RMS (with waveforms: the fundamental's RMS)
     phase_deg: float = 0.0        #: degrees (with waveforms: the fundamental's phase)
     waveform: Waveform | None = None  #: the current's waveform over one period, if given
+    start: str = "inner"          #: which end is the start terminal: "inner" (its first turn in case order) or "outer"
     #: DC value, RMS and harmonics (cases with waveforms only; current/phase is then a sine at the fundamental)
     spectrum: Spectrum | None = field(default=None, compare=False, repr=False)
 
@@ -272,6 +273,33 @@ class Thermal:
     max_temperature: float = 400.0
 
 
+#: relative permittivity of the fills between the conductors (common practice)
+DIELECTRIC_FILLS = {"air": 1.0, "varnish": 3.5, "potting": 4.0}
+CORE_ELECTRODES = ("grounded", "floating")
+
+
+@dataclass(frozen=True)
+class Dielectric:
+    """``[dielectric]``: relative permittivities for the electrostatic
+    solution (winding capacitance).  ``fill_permittivity``: the space between
+    the conductors; ``insulation_permittivity``: each conductor's insulation
+    (outer minus bare size), per winding in ``winding_insulation`` (name ->
+    permittivity) where given; ``layer_insulation_permittivity``: the layers'
+    ``insulation_after`` tape; ``core``: the core or walls as an electrode,
+    "grounded" (0 V, the reference) or "floating" (no net charge)."""
+
+    fill: str = "air"
+    fill_permittivity: float = 1.0
+    insulation_permittivity: float = 3.5
+    layer_insulation_permittivity: float = 3.3
+    winding_insulation: tuple[tuple[str, float], ...] = ()
+    core: str = "grounded"
+
+    def insulation_of(self, winding: str) -> float:
+        """The insulation permittivity of ``winding``'s conductors."""
+        return dict(self.winding_insulation).get(winding, self.insulation_permittivity)
+
+
 @dataclass(frozen=True)
 class Case:
     """A checked case.  ``notes``: remarks for the user that are not errors."""
@@ -299,6 +327,7 @@ class Case:
     centre_leg: CentreLeg | None = None     #: [core] centre_leg: per-turn lengths (planar models)
     end_turns: "EndTurns | None" = None     #: the part of each turn outside the core (planar models)
     thermal: Thermal | None = None          #: [thermal]: the temperature the loss causes
+    dielectric: Dielectric | None = None    #: [dielectric]: the winding capacitance
 
     def winding(self, name: str) -> Winding:
         return next(w for w in self.windings if w.name == name)

@@ -20,6 +20,7 @@ from racfield.postprocess import results_file
 from racfield.postprocess.atomic import replace_bytes
 from racfield.postprocess.comparison import COMPARISON_FILES, STUDY_FILES, summary, write_comparison, write_study_table
 from racfield.postprocess.harmonics import harmonics_table
+from racfield.postprocess.capacitance import capacitance_lines
 from racfield.postprocess.thermal import thermal_lines
 from racfield.geometry.case.units import format_frequency
 from racfield.postprocess.report import CAUTION, Report, build_report, parallel_document, results_document
@@ -146,7 +147,7 @@ def _write_one(report: Report, out: Path, state: RunState, key: str, files: dict
     harmonics = report.harmonics
     if harmonics is not None:
         print(harmonics_table(harmonics))
-    for line in thermal_lines(report.thermal):
+    for line in thermal_lines(report.thermal) + capacitance_lines(report.capacitance):
         print(line)
     t = sweep.timings
     print(f"mesh: {sweep.unknowns} unknowns, {sweep.elements} elements; "

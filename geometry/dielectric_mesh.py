@@ -106,34 +106,43 @@ def _contacts(conductors: list[Conductor]) -> list[tuple[float, float, float]]:
     return points
 
 
+def _threshold(dist: int, size: float, h_max: float, reach: float, grading: float) -> int:
+    """``size`` (m) up to ``reach`` from the distance field ``dist``, growing by ``grading`` to ``h_max``."""
+    field = gmsh.model.mesh.field
+    thr = field.add("Threshold")
+    for name, value in (("InField", dist), ("SizeMin", size), ("SizeMax", h_max), ("DistMin", reach),
+                        ("DistMax", reach + (h_max - size) / grading)):
+        field.setNumber(thr, name, value)
+    return thr
+
+
 def _size_fields(conductors: list[Conductor], conductor_surfaces: list[list[int]], density: float,
                  h_max: float) -> list[int]:
-    """Fine at every conductor and shell surface, and at the contacts."""
+    """Fine at every conductor and shell surface, and at the contacts; one
+    distance field per size (gmsh evaluates every field at every point)."""
     field = gmsh.model.mesh.field
-    ids = []
+    groups: dict[tuple[float, float], list[int]] = {}
     for c, surfaces in zip(conductors, conductor_surfaces):
         h = _element_size(c, density)
-        curves = sorted({abs(t) for s in surfaces for _, t in gmsh.model.getBoundary([(2, s)], oriented=False)})
+        key = (float(f"{h:.3g}"), float(f"{max(c.insulation) * 2 + h:.3g}"))
+        groups.setdefault(key, []).extend(
+            abs(t) for s in surfaces for _, t in gmsh.model.getBoundary([(2, s)], oriented=False))
+    ids = []
+    for (h, reach), curves in groups.items():
         dist = field.add("Distance")
-        field.setNumbers(dist, "CurvesList", curves)
+        field.setNumbers(dist, "CurvesList", sorted(set(curves)))
         field.setNumber(dist, "Sampling", 60)
-        thr = field.add("Threshold")
-        reach = max(c.insulation) * 2 + h
-        for name, value in (("InField", dist), ("SizeMin", h), ("SizeMax", h_max), ("DistMin", reach),
-                            ("DistMax", reach + (h_max - h) / 0.3)):
-            field.setNumber(thr, name, value)
-        ids.append(thr)
+        ids.append(_threshold(dist, h, h_max, reach, 0.3))
+    contacts: dict[float, list[int]] = {}
     for x, y, gap in _contacts(conductors):
-        point = gmsh.model.occ.addPoint(x, y, 0.0)
+        size = float(f"{max(gap, 1e-12) / density:.2g}")
+        contacts.setdefault(size, []).append(gmsh.model.occ.addPoint(x, y, 0.0))
+    if contacts:
         gmsh.model.occ.synchronize()
+    for size, points in contacts.items():
         dist = field.add("Distance")
-        field.setNumbers(dist, "PointsList", [point])
-        thr = field.add("Threshold")
-        size = max(gap, 1e-12) / density
-        for name, value in (("InField", dist), ("SizeMin", size), ("SizeMax", h_max), ("DistMin", 2 * size),
-                            ("DistMax", 2 * size + (h_max - size) / 0.3)):
-            field.setNumber(thr, name, value)
-        ids.append(thr)
+        field.setNumbers(dist, "PointsList", points)
+        ids.append(_threshold(dist, size, h_max, 2 * size, 0.3))
     return ids
 
 

@@ -9,7 +9,8 @@ region (``shell_region(k)``) and each ``insulation_after`` strip a ``TAPE``
 region.  Outer outlines touch their neighbours (the layer pitch is the outer
 size); two circles that touch cannot be meshed, so each shell is drawn
 ``SHRINK`` of its thickness inside its outer outline, leaving a gap of a few
-thousandths of the insulation at each contact, refined there.  The mesh is
+thousandths of the insulation at each contact, refined there (and a strip
+face that a bare round wire touches is drawn as far inside the strip).  The mesh is
 sized from the geometry alone (no skin depth): at a conductor surface at
 most twice its insulation's thickness.
 """
@@ -58,16 +59,23 @@ def _shells(occ, conductors: list[Conductor]) -> list[tuple[int, tuple[int, int]
     return out
 
 
-def _strips(occ, strips: list[tuple[float, float, float, float]], across_width: bool) -> list[tuple[int, int]]:
-    """The tape strips (x0, x1, y0, y1) m, their faces drawn SHRINK of the thickness inward."""
+def _strips(occ, strips: list[tuple[float, float, float, float]], across_width: bool,
+            conductors: list[Conductor]) -> list[tuple[int, int]]:
+    """The tape strips (x0, x1, y0, y1) m.  A face that a bare round conductor
+    (one without insulation) touches is drawn SHRINK of the thickness inward
+    (a circle touching a line cannot be meshed); a face that a flat conductor
+    or an insulation shell meets stays where it is."""
+    bare_round = [c for c in conductors if c.shape == "round" and c.insulation[0] <= 0.0]
     out = []
     for x0, x1, y0, y1 in strips:
-        if across_width:
-            d = SHRINK * (x1 - x0)
-            x0, x1 = x0 + d, x1 - d
-        else:
-            d = SHRINK * (y1 - y0)
-            y0, y1 = y0 + d, y1 - d
+        lo, hi = (x0, x1) if across_width else (y0, y1)
+        d = SHRINK * (hi - lo)
+
+        def touched(face: float) -> bool:
+            return any(abs(abs((c.x if across_width else c.y) - face) - c.radius) <= d for c in bare_round)
+
+        lo, hi = lo + (d if touched(lo) else 0.0), hi - (d if touched(hi) else 0.0)
+        x0, x1, y0, y1 = (lo, hi, y0, y1) if across_width else (x0, x1, lo, hi)
         out.append((2, occ.addRectangle(x0, y0, 0.0, x1 - x0, y1 - y0)))
     return out
 
@@ -161,7 +169,7 @@ def build_dielectric_mesh(conductors: list[Conductor], strips: list[tuple[float,
         occ = gmsh.model.occ
         bare = _conductor_tools(occ, conductors)
         shells = _shells(occ, conductors)
-        tapes = _strips(occ, strips, across_width)
+        tapes = _strips(occ, strips, across_width, conductors)
         domain = _domain(occ, boundary, width, height, far_radius_factor, core, axis_x)
         tools = bare + [s for _, s in shells] + tapes + domain.core_tools
         _, mapping = occ.fragment([(2, domain.surface)], tools)

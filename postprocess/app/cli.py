@@ -65,6 +65,13 @@ def _check_text(case: "Case") -> str:
         lines.append(f"end turns: {share} outside the core, solved as a second section beside the centre leg")
     if case.thermal is not None:
         lines.append(_thermal_line(case))
+    if case.dielectric is not None:
+        d = case.dielectric
+        extra = "".join(f", {name} {value:g}" for name, value in d.winding_insulation)
+        lines.append(f"dielectric: relative permittivity between the conductors {d.fill_permittivity:g}, insulation "
+                     f"{d.insulation_permittivity:g}{extra}, layer insulation {d.layer_insulation_permittivity:g}; "
+                     f"core {d.core}; start terminals: "
+                     + ", ".join(f"{w.name} {w.start}" for w in case.windings))
     copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
     lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")

@@ -207,6 +207,25 @@ def test_interleaving_study(results):
     # half the leakage energy (1-D field energy of the MMF staircase, common practice)
     assert loss["P-S-P"] < loss["P-P-S"] and loss["P-S-P-S"] < loss["P-P-S"]
     assert leak["P-S-P"] < 0.5 * leak["P-P-S"] and leak["P-S-P-S"] < 0.5 * leak["P-P-S"]
+    # ... and puts more primary and secondary layer faces side by side: the
+    # inter-winding capacitance rises with the number of facing P-S layer
+    # pairs, 1, 2 and 3 (common practice)
+    between = {name: doc["capacitance"]["winding"]["between_f"]["primary-secondary"]
+               for name, doc in variants.items()}
+    assert between["P-P-S"] < between["P-S-P"] < between["P-S-P-S"]
+    for name, doc in variants.items():
+        c = np.array(doc["capacitance"]["conductor_f_per_m"])
+        # a Maxwell matrix: symmetric (reciprocity), negative off-diagonal
+        # entries, non-negative row sums (Ramo, Whinnery & Van Duzer)
+        assert np.abs(c - c.T).max() <= 1e-12 * np.abs(c).max()
+        assert (c - np.diag(np.diag(c))).max() <= 0.0
+        assert c.sum(axis=1).min() >= -1e-9 * np.abs(c).max()
+        # two neighbouring secondary foils, 9.0 mm high, 0.05 mm of tape
+        # (eps_r 3.3) apart: the parallel-plate capacitor eps A / d (Ramo,
+        # Whinnery & Van Duzer), fringing adding a few per cent
+        foils = [i for i, e in enumerate(doc["capacitance"]["electrodes"]) if e.startswith("secondary.")]
+        plate = 8.8541878128e-12 * 3.3 * 9.0e-3 / 0.05e-3
+        assert 1.0 < -c[foils[0], foils[1]] / plate < 1.05
 
 
 def test_paralleled_foils_demo(results):

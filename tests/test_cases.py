@@ -218,7 +218,7 @@ def test_interleaving_study(results):
         # a Maxwell matrix: symmetric (reciprocity), negative off-diagonal
         # entries, non-negative row sums (Ramo, Whinnery & Van Duzer)
         assert np.abs(c - c.T).max() <= 1e-12 * np.abs(c).max()
-        assert (c - np.diag(np.diag(c))).max() <= 0.0
+        assert (c - np.diag(np.diag(c))).max() <= 1e-12 * np.abs(c).max()   # rounding of shielded pairs
         assert c.sum(axis=1).min() >= -1e-9 * np.abs(c).max()
         # two neighbouring secondary foils, 9.0 mm high, 0.05 mm of tape
         # (eps_r 3.3) apart: the parallel-plate capacitor eps A / d (Ramo,

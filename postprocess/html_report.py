@@ -17,6 +17,7 @@ from racfield.geometry.case.units import format_frequency
 
 from . import results_file
 from .atomic import replace_text
+from .html_capacitance import capacitance_section
 from .html_parts import Page as _Page, cell as _cell, eng, esc, image as _image, table as _table
 from .html_thermal import temperature_section
 from .validation_status import VALIDATION, case_features
@@ -262,6 +263,7 @@ def _folder_sections(page: _Page, doc: dict, folder: Path, prefix: str, level: i
                     f"|J| and flux lines at {_freq(doc['frequencies_hz'][-1])}.", "No field map."))
     _conductor_losses(page, doc, folder, prefix, level)
     temperature_section(page, doc, folder, prefix, level)
+    capacitance_section(page, doc, folder, prefix, level)
 
 
 def _validation(page: _Page, features: set[str]) -> None:

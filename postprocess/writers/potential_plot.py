@@ -9,7 +9,6 @@ r = x + inner_radius; an open model is shown around its window.
 
 from __future__ import annotations
 
-import math
 import textwrap
 from pathlib import Path
 
@@ -84,23 +83,42 @@ def _outlines(ax: Axes, report: Report, s_mm: float) -> None:
 
 
 def _label_format(levels: np.ndarray) -> str:
-    """Enough decimals to tell neighbouring equipotential labels apart."""
-    step = float(np.min(np.diff(levels))) if levels.size > 1 else 1.0
-    return f"%.{max(0, min(4, -math.floor(math.log10(step)))) if step > 0 else 0}f"
+    """The fewest decimals (up to 4) that write every equipotential's level exactly."""
+    for decimals in range(5):
+        if np.allclose(np.round(levels, decimals), levels, rtol=0.0, atol=1e-9 * max(np.ptp(levels), 1e-30)):
+            return f"%.{decimals}f"
+    return "%.4f"
 
 
-def _equipotentials(ax: Axes, tri: Triangulation, values: np.ndarray, low: float, high: float) -> None:
-    """A handful of labelled equipotentials strictly between ``low`` and ``high`` (V)."""
+def _spread(ax: Axes, texts: list) -> None:
+    """Keep the labels inside the view and apart (a twelfth of it): drop the others."""
+    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+    kept: list[tuple[float, float]] = []
+    for text in texts:
+        x, y = text.get_position()
+        u, v = (x - x0) / (x1 - x0), (y - y0) / (y1 - y0)
+        if not (0.03 <= u <= 0.97 and 0.03 <= v <= 0.97) or any(np.hypot(u - a, v - b) < 0.08 for a, b in kept):
+            text.remove()
+            continue
+        kept.append((u, v))
+        text.set_rotation(0)
+        text.set_path_effects([Stroke(linewidth=1.6, foreground="black"), Normal()])
+
+
+def _equipotentials(ax: Axes, tri: Triangulation, values: np.ndarray, electrodes: np.ndarray) -> None:
+    """A handful of labelled equipotentials strictly between the lowest and the
+    highest of the ``electrodes``' potentials (V), none at an electrode's own
+    (it would outline the electrode, or trace the walls)."""
+    low, high = float(electrodes.min()), float(electrodes.max())
     levels = MaxNLocator(EQUIPOTENTIALS).tick_values(low, high)
-    margin = 0.02 * (high - low)   # not at an electrode's own value: its whole region would be outlined
+    margin = 0.02 * (high - low)
     levels = levels[(levels > low + margin) & (levels < high - margin)]
+    levels = levels[np.min(np.abs(levels[:, None] - electrodes[None, :]), axis=1) > margin]
     if levels.size == 0:
         return
     lines = ax.tricontour(tri, values, levels=levels, colors="white", linewidths=0.6, alpha=0.85, zorder=0.45,
                           linestyles="solid")
-    texts = ax.clabel(lines, fmt=_label_format(levels), fontsize=7, inline=False)
-    for text in texts:
-        text.set_path_effects([Stroke(linewidth=1.6, foreground="black"), Normal()])
+    _spread(ax, ax.clabel(lines, fmt=_label_format(levels), fontsize=7, inline=False))
 
 
 def _title(report: Report) -> str:
@@ -131,7 +149,7 @@ def potential_figure(report: Report) -> Figure | None:
     draw_walls(ax, report, s_mm, core_face="none", window_face="none")
     mappable = ax.tripcolor(tri, values, cmap=colormaps[POTENTIAL_MAP], shading="gouraud", vmin=low, vmax=high,
                             zorder=0.4)
-    _equipotentials(ax, tri, values, low, high)
+    _equipotentials(ax, tri, values, electrodes)
     _outlines(ax, report, s_mm)
     ax.set_aspect("equal")
     (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()

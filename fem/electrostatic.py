@@ -88,7 +88,12 @@ class ElectrostaticProblem:
         voltages = np.asarray(voltages, dtype=float)
         rhs = np.zeros(self.n + self.count)
         rhs[self.n:] = self.capacitance @ voltages
-        return self.collapse @ self._solve(rhs)
+        z = self._solve(rhs)
+        # with no fixed potential anywhere the matrix holds the constants in its
+        # null space (its last pivot is rounding): the solve returns the field
+        # up to a constant, taken out here so that the electrodes sit at ``voltages``
+        z += np.mean(voltages - z[self.n:])
+        return self.collapse @ z
 
     def energy(self, voltages: np.ndarray) -> float:
         """Stored energy 1/2 V^T C V (J/m or J)."""

@@ -3,7 +3,8 @@
 Each variant is given by its results document (results.json, see
 :func:`postprocess.report.results_document`), so that variants finished by an
 earlier, interrupted run take part without being solved again; this module
-only lines them up.  Losses in W at the case currents, leakage in H.
+only lines them up.  Losses in W at the case currents, leakage in H,
+capacitances in F (whole turns; with ``[dielectric]``, None otherwise).
 """
 
 from __future__ import annotations
@@ -31,6 +32,12 @@ class VariantRow:
     loss_w: dict[str, list[float]]
     total_loss_w: list[float]
     leakage_l_h: list[float] | None
+    self_capacitance_f: dict[str, float] | None = None      #: each winding's, across its terminals
+    between_capacitance_f: dict[str, float] | None = None   #: per pair of windings ("a-b"), turns tied
+
+    def first_between(self) -> float | None:
+        """The capacitance between the first pair of windings (F), None without one."""
+        return next(iter(self.between_capacitance_f.values()), None) if self.between_capacitance_f else None
 
 
 def folder_name(variant: str) -> str:
@@ -39,20 +46,28 @@ def folder_name(variant: str) -> str:
 
 
 #: the files :func:`write_comparison` writes
-COMPARISON_FILES = ("comparison.csv", "comparison.json", "rac_over_rdc_variants.png", "loss_by_variant.png")
+COMPARISON_FILES = ("comparison.csv", "comparison.json", "rac_over_rdc_variants.png", "loss_by_variant.png",
+                    "tradeoff.png")
 
 
 def row(variant: str, doc: dict) -> VariantRow:
     """A variant's row from its results document."""
     leakage = doc.get("leakage")
     windings = doc["windings"]
+    capacitance = (doc.get("capacitance") or {}).get("winding") or {}
     return VariantRow(variant or "base", {n: w["rac_over_rdc"] for n, w in windings.items()},
                       {n: w["loss_w"] for n, w in windings.items()}, doc["total_loss_w"],
-                      None if leakage is None else leakage["l_h"])
+                      None if leakage is None else leakage["l_h"], capacitance.get("self_f"),
+                      capacitance.get("between_f"))
 
 
 def rows(documents: list[tuple[str, dict]]) -> list[VariantRow]:
     return [row(variant, doc) for variant, doc in documents]
+
+
+def _f(value: float | None) -> str:
+    """A number for a CSV cell: 8 digits, or empty when missing."""
+    return "" if value is None else f"{value:.8g}"
 
 
 def compare_index(frequencies: np.ndarray, wanted: float | None) -> int:
@@ -64,8 +79,9 @@ def compare_index(frequencies: np.ndarray, wanted: float | None) -> int:
 
 
 def write_comparison(documents: list[tuple[str, dict]], directory: Path, wanted: float | None) -> list[Path]:
-    """comparison.csv, comparison.json, rac_over_rdc_variants.png and loss_by_variant.png
-    from (variant, results document) pairs."""
+    """comparison.csv, comparison.json, rac_over_rdc_variants.png, loss_by_variant.png
+    and, when the variants have capacitances and leakage, tradeoff.png from
+    (variant, results document) pairs."""
     table = rows(documents)
     first = documents[0]
     freqs = np.asarray(first[1]["frequencies_hz"])
@@ -74,22 +90,27 @@ def write_comparison(documents: list[tuple[str, dict]], directory: Path, wanted:
 
     buffer = io.StringIO()
     out = csv.writer(buffer, lineterminator="\n")
-    out.writerow(["variant", "frequency_hz", "winding", "rac_over_rdc", "loss_w", "total_loss_w", "leakage_l_h"])
+    out.writerow(["variant", "frequency_hz", "winding", "rac_over_rdc", "loss_w", "total_loss_w", "leakage_l_h",
+                  "self_capacitance_f", "between_capacitance_f"])
     for row in table:
         for i, f in enumerate(freqs):
             for name in windings:
                 ratio = row.rac_over_rdc[name][i]
                 out.writerow([row.name, f"{f:.8g}", name, "" if ratio is None else f"{ratio:.8g}",
                               f"{row.loss_w[name][i]:.8g}", f"{row.total_loss_w[i]:.8g}",
-                              "" if row.leakage_l_h is None else f"{row.leakage_l_h[i]:.8g}"])
+                              "" if row.leakage_l_h is None else f"{row.leakage_l_h[i]:.8g}",
+                              _f((row.self_capacitance_f or {}).get(name)), _f(row.first_between())])
     written = [replace_text(directory / "comparison.csv", buffer.getvalue())]
     doc = {"frequencies_hz": freqs.tolist(), "compare_frequency_hz": float(freqs[at]),
            "variants": {r.name: {"rac_over_rdc": r.rac_over_rdc, "loss_w": r.loss_w,
                                  "total_loss_w": r.total_loss_w, "leakage_l_h": r.leakage_l_h,
+                                 "self_capacitance_f": r.self_capacitance_f,
+                                 "between_capacitance_f": r.between_capacitance_f,
                                  "folder": folder_name(r.name)} for r in table}}
     written.append(replace_text(directory / "comparison.json", json.dumps(doc, indent=1) + "\n"))
     written.append(_ratio_plot(first, table, windings, freqs, directory))
     written.append(_loss_bars(first, table, windings, freqs, at, directory))
+    written += _tradeoff_plot(first, table, freqs, at, directory)
     return written
 
 
@@ -145,6 +166,42 @@ def _loss_bars(first: tuple[str, dict], table: list[VariantRow], windings: list[
     return save(figure, directory / "loss_by_variant.png")
 
 
+def _tradeoff_plot(first: tuple[str, dict], table: list[VariantRow], freqs: np.ndarray, at: int,
+                   directory: Path) -> list[Path]:
+    """tradeoff.png: each variant at its leakage inductance (x, H) and its
+    capacitance between the first pair of windings (y, F), coloured by its
+    total loss at the comparison frequency (W); nothing (an empty list) when
+    no variant has both."""
+    shown = [r for r in table if r.leakage_l_h is not None and r.first_between() is not None]
+    if not shown:
+        return []
+    from matplotlib import colormaps
+    from matplotlib.ticker import EngFormatter
+
+    from .plotting import LINE_MAP, new_figure, save
+
+    x = np.array([r.leakage_l_h[at] for r in shown])
+    y = np.array([r.first_between() for r in shown])
+    loss = np.array([r.total_loss_w[at] for r in shown])
+    figure = new_figure(7.0, 4.8)
+    ax = figure.add_subplot()
+    points = ax.scatter(x, y, c=loss, cmap=colormaps[LINE_MAP], s=70, edgecolors="0.2", linewidths=0.6, zorder=3)
+    for xi, yi, r in zip(x, y, shown):
+        ax.annotate(r.name, (xi, yi), xytext=(6, 5), textcoords="offset points", fontsize=8)
+    pair = next(iter(shown[0].between_capacitance_f))
+    ax.xaxis.set_major_formatter(EngFormatter(unit="H"))
+    ax.yaxis.set_major_formatter(EngFormatter(unit="F"))
+    ax.set_xlabel(f"Leakage inductance at {format_frequency(freqs[at])} (H)")
+    ax.set_ylabel(f"Capacitance between {pair.replace('-', ' and ', 1)} (F)")
+    ax.margins(0.15)
+    ax.grid(True, color="0.9", linewidth=0.6)
+    bar = figure.colorbar(points, ax=ax)
+    bar.set_label(f"Total winding loss at {format_frequency(freqs[at])} (W)")
+    ax.set_title(f"{_base_title(first)}: loss vs leakage vs capacitance\nmodel estimate, see the README caution",
+                 fontsize=9)
+    return [save(figure, directory / "tradeoff.png")]
+
+
 def _base_title(first: tuple[str, dict]) -> str:
     variant, doc = first
     title = doc["title"]
@@ -160,12 +217,16 @@ def summary(documents: list[tuple[str, dict]], wanted: float | None) -> str:
     windings = list(documents[0][1]["windings"])
     head = (f"{'variant':<28} " + " ".join(f"{n[:12] + ' Rac/Rdc':>20}" for n in windings)
             + f" {'total loss':>12} {'leakage':>12}")
+    capacitance = any(r.first_between() is not None for r in table)
+    head += f" {'C between':>12}" if capacitance else ""
     lines = [f"comparison at {format_frequency(freqs[at])}:", head, "-" * len(head)]
     for row in table:
         ratios = " ".join(f"{'-' if row.rac_over_rdc[n][at] is None else f'{row.rac_over_rdc[n][at]:.4f}':>20}"
                           for n in windings)
         leak = "-" if row.leakage_l_h is None else f"{row.leakage_l_h[at] * 1e6:.4g} uH"
-        lines.append(f"{row.name[:28]:<28} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}")
+        between = "-" if row.first_between() is None else f"{row.first_between() * 1e12:.4g} pF"
+        lines.append(f"{row.name[:28]:<28} {ratios} {row.total_loss_w[at]:>10.4g} W {leak:>12}"
+                     + (f" {between:>12}" if capacitance else ""))
     return "\n".join(lines)
 
 
@@ -176,7 +237,9 @@ STUDY_FILES = ("study.csv", "study.json")
 def write_study_table(case, documents: list[tuple[str, dict]], failed: dict[str, str],
                       directory: Path) -> list[Path]:
     """study.csv and study.json: one row per variant and frequency (the study's
-    values, each winding's Rac/Rdc and loss in W, the total, the leakage in H),
+    values, each winding's Rac/Rdc and loss in W, the total, the leakage in H,
+    with [dielectric] each winding's self capacitance and the capacitance
+    between the first pair of windings in F, empty without),
     and one row with the error for every failed variant."""
     points = {p.name: dict(p.values) for p in getattr(case, "study", ())}
     keys = list(dict.fromkeys(k for values in points.values() for k in values)) or ["variant"]
@@ -196,13 +259,14 @@ def write_study_table(case, documents: list[tuple[str, dict]], failed: dict[str,
     # [[variant]] arrangement) is headed "arrangement", so that no two columns share a name
     axes = ["arrangement" if k == "variant" else k for k in keys]
     out.writerow(["variant", *axes, "frequency_hz", *[f"{w}_rac_over_rdc" for w in windings],
-                  *[f"{w}_loss_w" for w in windings], "total_loss_w", "leakage_l_h", "error"])
+                  *[f"{w}_loss_w" for w in windings], "total_loss_w", "leakage_l_h",
+                  *[f"{w}_self_capacitance_f" for w in windings], "between_capacitance_f", "error"])
     entries = []
     docs = dict(documents)
     for name in order:
         values = [value(name, k) for k in keys]
         if name in failed:
-            out.writerow([name, *values, "", *[""] * (2 * len(windings)), "", "", failed[name]])
+            out.writerow([name, *values, "", *[""] * (3 * len(windings)), "", "", "", failed[name]])
             entries.append({"variant": name, "values": dict(zip(keys, values)), "error": failed[name]})
             continue
         r, freqs = table[name], docs[name]["frequencies_hz"]
@@ -210,11 +274,13 @@ def write_study_table(case, documents: list[tuple[str, dict]], failed: dict[str,
             out.writerow([name, *values, f"{f:.8g}",
                           *["" if r.rac_over_rdc[w][i] is None else f"{r.rac_over_rdc[w][i]:.8g}" for w in windings],
                           *[f"{r.loss_w[w][i]:.8g}" for w in windings], f"{r.total_loss_w[i]:.8g}",
-                          "" if r.leakage_l_h is None else f"{r.leakage_l_h[i]:.8g}", ""])
+                          "" if r.leakage_l_h is None else f"{r.leakage_l_h[i]:.8g}",
+                          *[_f((r.self_capacitance_f or {}).get(w)) for w in windings], _f(r.first_between()), ""])
         entries.append({"variant": name, "values": dict(zip(keys, values)), "error": None,
                         "folder": folder_name(name), "frequencies_hz": freqs,
                         "rac_over_rdc": r.rac_over_rdc, "loss_w": r.loss_w, "total_loss_w": r.total_loss_w,
-                        "leakage_l_h": r.leakage_l_h})
+                        "leakage_l_h": r.leakage_l_h, "self_capacitance_f": r.self_capacitance_f,
+                        "between_capacitance_f": r.between_capacitance_f})
     doc = {"keys": keys, "windings": windings, "variants": entries}
     return [replace_text(directory / "study.csv", buffer.getvalue()),
             replace_text(directory / "study.json", json.dumps(doc, indent=1) + "\n")]

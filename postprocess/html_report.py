@@ -17,6 +17,7 @@ from racfield.geometry.case.units import format_frequency
 
 from . import results_file
 from .atomic import replace_text
+from .html_capacitance import capacitance_section
 from .html_parts import Page as _Page, cell as _cell, eng, esc, image as _image, table as _table
 from .html_thermal import temperature_section
 from .validation_status import VALIDATION, case_features
@@ -262,6 +263,7 @@ def _folder_sections(page: _Page, doc: dict, folder: Path, prefix: str, level: i
                     f"|J| and flux lines at {_freq(doc['frequencies_hz'][-1])}.", "No field map."))
     _conductor_losses(page, doc, folder, prefix, level)
     temperature_section(page, doc, folder, prefix, level)
+    capacitance_section(page, doc, folder, prefix, level)
 
 
 def _validation(page: _Page, features: set[str]) -> None:
@@ -333,6 +335,7 @@ def _variants(folder: Path) -> str:
     windings = list(next(iter(variants.values()))["rac_over_rdc"]) if variants else []
     first_total = None
     rows = []
+    capacitance = any(v.get("between_capacitance_f") for v in variants.values())
     for name, v in variants.items():
         total = _at(v["total_loss_w"], at)
         first_total = total if first_total is None else first_total
@@ -341,15 +344,22 @@ def _variants(folder: Path) -> str:
         row = [name] + [_ratio(_at(v["rac_over_rdc"].get(w), at)) for w in windings]
         row += [eng(_at(v.get("loss_w", {}).get(w), at), "W") for w in windings]
         row += [eng(total, "W"), change, eng(_at(v.get("leakage_l_h"), at), "H")]
+        between = list((v.get("between_capacitance_f") or {}).values())
+        row += [eng(between[0] if between else None, "F")] if capacitance else []
         rows.append(row)
     head = (["variant"] + [f"{w} Rac/Rdc" for w in windings] + [f"{w} loss" for w in windings]
-            + ["total loss", "total vs first variant", "leakage inductance"])
+            + ["total loss", "total vs first variant", "leakage inductance"]
+            + (["capacitance between windings"] if capacitance else []))
     page.add("<p>Every variant at the case currents; losses in W per whole turn length.</p>")
     page.add(_table(head, rows, numeric=set(range(1, len(head)))))
     page.add(_image(folder, "rac_over_rdc_variants.png", "Rac/Rdc of each winding for every variant",
                     "Rac/Rdc of each winding, every variant.", "No variant Rac/Rdc plot."))
     page.add(_image(folder, "loss_by_variant.png", "winding losses of every variant",
                     f"Winding losses at {_freq(compare)}.", "No loss bar chart."))
+    if capacitance:
+        page.add(_image(folder, "tradeoff.png", "leakage inductance against capacitance, coloured by loss",
+                        f"Leakage, capacitance and total loss of every variant at {_freq(compare)}.",
+                        "No trade-off plot."))
     features: set[str] = set()
     caution = None
     for i, (name, v) in enumerate(variants.items(), start=1):

@@ -12,7 +12,7 @@ from typing import Callable
 from .. import results_file
 from ..report import Report
 from . import (conductor_loss_plot, conductors_csv, estimates_csv, estimates_plot, field_plot, field_vtu,
-               geometry_plot, harmonics_csv, mmf_plot, rac_csv, rac_plot, temperature_plot)
+               geometry_plot, harmonics_csv, mmf_plot, potential_plot, rac_csv, rac_plot, temperature_plot)
 
 Writer = Callable[[Report, Path], list[Path]]
 
@@ -28,6 +28,7 @@ WRITERS: dict[str, Writer] = {
     "current_density.png": field_plot.write,
     "conductor_loss.png": conductor_loss_plot.write,
     "temperature.png": temperature_plot.write,   # only with [thermal]
+    "potential.png": potential_plot.write,       # only with [dielectric]
     "mmf.png": mmf_plot.write,
     "field.vtu": field_vtu.write,
 }

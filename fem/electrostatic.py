@@ -9,9 +9,11 @@ factorized once (nested dissection, no pivoting: it is symmetric positive
 definite); its trailing block is the Schur complement over the electrode
 potentials, which is the Maxwell capacitance matrix C: Q = C V, charges in
 C/m (planar) or C (axisymmetric, volume weight 2 pi r), potentials in V.
-``C`` is symmetric with negative off-diagonal entries and non-negative row
-sums (the charges of a potential distribution that holds every electrode at
-the same potential sum to zero only when nothing surrounds them).
+The last electrode (the core) is the reference: it is held at 0 V in the
+factorization (so the matrix is definite) and its row and column follow from
+charge neutrality.  ``C`` is symmetric with negative off-diagonal entries and
+zero row sums (every other boundary is a natural one: all the flux ends on
+electrodes).
 """
 
 from __future__ import annotations
@@ -60,22 +62,31 @@ class ElectrostaticProblem:
             owner[dofs] = e
         free = np.nonzero(owner < 0)[0]
         self.free, self.count, self.owner = free, len(groups), owner
-        n = len(free)
+        n, m = len(free), len(groups) - 1   # the last electrode is the reference, held at 0 V
         column = np.where(owner < 0, 0, n + owner)
         column[free] = np.arange(n)
-        collapse = sp.csr_matrix((np.ones(basis.N), (np.arange(basis.N), column)), shape=(basis.N, n + self.count))
+        held = owner == m
+        collapse = sp.csr_matrix((np.ones(int((~held).sum())), (np.nonzero(~held)[0], column[~held])),
+                                 shape=(basis.N, n + m))
         matrix = (collapse.T @ stiffness @ collapse).tocsr()
-        order = np.concatenate([nested_dissection(matrix[:n][:, :n]), np.arange(n, n + self.count)])
-        self.order, self.collapse = order, collapse
+        order = np.concatenate([nested_dissection(matrix[:n][:, :n]), np.arange(n, n + m)])
+        self.order, self.collapse, self.n, self.held = order, collapse, n, held
         self.lu = splu(matrix[order][:, order].tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0,
                        options={"SymmetricMode": True})
-        self.n = n
         block = trailing_schur(self.lu, n)
         if block is None:   # the free DOFs are not connected: from one solve per electrode
-            rhs = np.zeros((n + self.count, self.count))
-            rhs[n:] = np.eye(self.count)
+            rhs = np.zeros((n + m, m))
+            rhs[n:] = np.eye(m)
             block = np.linalg.inv(self._solve(rhs)[n:])
-        self.capacitance = 0.5 * (block + block.T)   #: the Maxwell matrix (F/m or F), electrode order
+        block = 0.5 * (block + block.T)
+        # the reference's row and column from charge neutrality: nothing but the
+        # electrodes receives flux (every other boundary is a natural one), so
+        # each column of the Maxwell matrix sums to zero
+        full = np.zeros((m + 1, m + 1))
+        full[:m, :m] = block
+        full[:m, m] = full[m, :m] = -block.sum(axis=1)
+        full[m, m] = block.sum()
+        self.capacitance = full   #: the Maxwell matrix (F/m or F), electrode order
 
     def _solve(self, rhs: np.ndarray) -> np.ndarray:
         z = self.lu.solve(np.ascontiguousarray(rhs[self.order]))
@@ -84,16 +95,14 @@ class ElectrostaticProblem:
         return out
 
     def potential(self, voltages: np.ndarray) -> np.ndarray:
-        """The potential (V) at every P2 node for electrode ``voltages`` (V)."""
+        """The potential (V) at every P2 node for electrode ``voltages`` (V):
+        solved with the reference electrode held, the others at their
+        voltages relative to it."""
         voltages = np.asarray(voltages, dtype=float)
-        rhs = np.zeros(self.n + self.count)
-        rhs[self.n:] = self.capacitance @ voltages
-        z = self._solve(rhs)
-        # with no fixed potential anywhere the matrix holds the constants in its
-        # null space (its last pivot is rounding): the solve returns the field
-        # up to a constant, taken out here so that the electrodes sit at ``voltages``
-        z += np.mean(voltages - z[self.n:])
-        return self.collapse @ z
+        relative = voltages[:-1] - voltages[-1]
+        rhs = np.zeros(self.n + self.count - 1)
+        rhs[self.n:] = self.capacitance[:-1, :-1] @ relative
+        return self.collapse @ self._solve(rhs) + voltages[-1]
 
     def energy(self, voltages: np.ndarray) -> float:
         """Stored energy 1/2 V^T C V (J/m or J)."""

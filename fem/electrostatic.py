@@ -5,13 +5,16 @@ Every electrode (a conductor region, or the core: its body, or the outer
 boundary facets of a closed window or an open model) is an equipotential:
 all its DOFs are one unknown, its potential.  The matrix of the remaining
 (free) DOFs and the electrode potentials, the electrodes ordered last, is
-factorized once (nested dissection, no pivoting: it is symmetric positive
-definite); its trailing block is the Schur complement over the electrode
-potentials, which is the Maxwell capacitance matrix C: Q = C V, charges in
-C/m (planar) or C (axisymmetric, volume weight 2 pi r), potentials in V.
-``C`` is symmetric with negative off-diagonal entries and non-negative row
-sums (the charges of a potential distribution that holds every electrode at
-the same potential sum to zero only when nothing surrounds them).
+singular (no boundary is held: a constant potential stores no energy), so
+the last electrode is the reference, left out, and the rest is factorized
+once (nested dissection, no pivoting: it is symmetric positive definite);
+its trailing block is the Schur complement over the other electrodes'
+potentials, C with the reference's row and column dropped, and these follow
+from C 1 = 0 (charge is conserved: the natural boundaries carry none).  C is
+the Maxwell capacitance matrix: Q = C V, charges in C/m (planar) or C
+(axisymmetric, volume weight 2 pi r), potentials in V; symmetric, negative
+off-diagonal entries, and without the reference row and column non-negative
+row sums.
 """
 
 from __future__ import annotations
@@ -65,17 +68,27 @@ class ElectrostaticProblem:
         column[free] = np.arange(n)
         collapse = sp.csr_matrix((np.ones(basis.N), (np.arange(basis.N), column)), shape=(basis.N, n + self.count))
         matrix = (collapse.T @ stiffness @ collapse).tocsr()
-        order = np.concatenate([nested_dissection(matrix[:n][:, :n]), np.arange(n, n + self.count)])
+        # the whole matrix is singular (a constant potential everywhere stores
+        # no energy; no boundary is Dirichlet): the last electrode is the
+        # reference and left out of the factors, which are then of a positive
+        # definite matrix, and its row and column of C follow from C 1 = 0
+        kept = n + self.count - 1
+        order = np.concatenate([nested_dissection(matrix[:n][:, :n]), np.arange(n, kept)])
         self.order, self.collapse = order, collapse
         self.lu = splu(matrix[order][:, order].tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0,
                        options={"SymmetricMode": True})
         self.n = n
         block = trailing_schur(self.lu, n)
         if block is None:   # the free DOFs are not connected: from one solve per electrode
-            rhs = np.zeros((n + self.count, self.count))
-            rhs[n:] = np.eye(self.count)
+            rhs = np.zeros((kept, self.count - 1))
+            rhs[n:] = np.eye(self.count - 1)
             block = np.linalg.inv(self._solve(rhs)[n:])
-        self.capacitance = 0.5 * (block + block.T)   #: the Maxwell matrix (F/m or F), electrode order
+        block = 0.5 * (block + block.T)
+        full = np.empty((self.count, self.count))
+        full[:-1, :-1] = block
+        full[:-1, -1] = full[-1, :-1] = -block.sum(axis=1)
+        full[-1, -1] = block.sum()
+        self.capacitance = full   #: the Maxwell matrix (F/m or F), electrode order
 
     def _solve(self, rhs: np.ndarray) -> np.ndarray:
         z = self.lu.solve(np.ascontiguousarray(rhs[self.order]))
@@ -86,9 +99,10 @@ class ElectrostaticProblem:
     def potential(self, voltages: np.ndarray) -> np.ndarray:
         """The potential (V) at every P2 node for electrode ``voltages`` (V)."""
         voltages = np.asarray(voltages, dtype=float)
-        rhs = np.zeros(self.n + self.count)
-        rhs[self.n:] = self.capacitance @ voltages
-        return self.collapse @ self._solve(rhs)
+        relative = voltages[:-1] - voltages[-1]   # to the reference electrode (the last)
+        rhs = np.zeros(self.n + self.count - 1)
+        rhs[self.n:] = self.capacitance[:-1, :-1] @ relative
+        return self.collapse @ np.append(self._solve(rhs), 0.0) + voltages[-1]
 
     def energy(self, voltages: np.ndarray) -> float:
         """Stored energy 1/2 V^T C V (J/m or J)."""

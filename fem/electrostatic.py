@@ -78,7 +78,6 @@ class ElectrostaticProblem:
             rhs = np.zeros((n + m, m))
             rhs[n:] = np.eye(m)
             block = np.linalg.inv(self._solve(rhs)[n:])
-        block = 0.5 * (block + block.T)
         # the reference's row and column from charge neutrality: nothing but the
         # electrodes receives flux (every other boundary is a natural one), so
         # each column of the Maxwell matrix sums to zero

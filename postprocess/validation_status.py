@@ -19,6 +19,7 @@ any entry matches, an entry ``"a+b"`` needing all of its parts:
 * ``"waveform"``: winding currents given as waveforms (harmonics)
 * ``"parallel"``: windings with parallel conductors
 * ``"thermal"``: a thermal solution (``[thermal]``)
+* ``"capacitance"``: an electrostatic solution (``[dielectric]``)
 """
 
 from __future__ import annotations
@@ -26,7 +27,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 FEATURES = ("all", "round", "rect", "open", "core", "inductance", "multi-winding", "axisymmetric", "mmf",
-            "dowell", "ferreira", "waveform", "parallel", "thermal")
+            "dowell", "ferreira", "waveform", "parallel", "thermal", "capacitance")
 
 
 @dataclass(frozen=True)
@@ -386,6 +387,48 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         'holds',
         applies_to=('thermal',)),
     ValidationCheck(
+        'Capacitance: two-wire line in open air, D/2a = 1.5 and 4',
+        'pi eps / arccosh(D/2a), S. Ramo, J. R. Whinnery, T. Van Duzer, *Fields and Waves in Communication Electronics*',
+        '0.2 %',
+        '+1.1e-4, +2.6e-4',
+        applies_to=('capacitance',)),
+    ValidationCheck(
+        'Capacitance: wire beside a grounded plane (`"open-wall"`), h/a = 2 and 4',
+        '2 pi eps / arccosh(h/a) (Ramo, Whinnery & Van Duzer)',
+        '0.2 %',
+        '+5.3e-5, -1.3e-6',
+        applies_to=('capacitance',)),
+    ValidationCheck(
+        'Capacitance: coaxial rings (axisymmetric), per unit height from two heights (the end fields cancel)',
+        '2 pi eps l / ln(b/a) (Ramo, Whinnery & Van Duzer)',
+        '0.1 %',
+        '-2.2e-5, -9.2e-6 (one height: +5.0 %, +2.5 %, +1.7 % fringing at 5, 10, 15 mm)',
+        applies_to=('capacitance',)),
+    ValidationCheck(
+        'Capacitance: enamelled wire (1 mm, 1.3 mm over the enamel, eps_r 3.5) in a concentric far circle',
+        'series capacitance of concentric shells, 2 pi eps0 / (ln(b/a)/eps_r + ln(R/b))',
+        '0.2 %',
+        '-2.3e-5',
+        applies_to=('capacitance',)),
+    ValidationCheck(
+        'Capacitance: two foils face to face, C / (eps A / d) at d = 0.4, 0.1, 0.025 mm, tending to 1',
+        'parallel-plate capacitor (Ramo, Whinnery & Van Duzer)',
+        '2 % at the smallest gap',
+        '1.035, 1.021, 1.009',
+        applies_to=('capacitance',)),
+    ValidationCheck(
+        'Energy method: n = 2, 3, 4 layers in series (zig-zag), linear voltage along each, against (4/3) C_ll (n - 1)/n^2',
+        'A. Massarini, M. K. Kazimierczuk, "Self-capacitance of inductors", IEEE Trans. Power Electronics, 1997',
+        '1 %',
+        '-8.2e-4, -4.8e-4, -2.7e-4',
+        applies_to=('capacitance',)),
+    ValidationCheck(
+        'Maxwell matrix: symmetric, negative off-diagonals, zero row sums (grounded and floating core); the worst-case potential between the electrode potentials',
+        'reciprocity; charge conservation; maximum principle (L. C. Evans, *Partial Differential Equations*, 2010)',
+        '1e-12',
+        'holds',
+        applies_to=('capacitance',)),
+    ValidationCheck(
         'Every case in `cases/` runs; Rdc against rho l N/A; low-frequency Rac/Rdc against the series of the Bessel and Dowell solutions; round-wire turns never below the isolated-wire skin loss',
         'IEC 60028; Dowell 1966; J. A. Ferreira, "Improved analytical modeling of conductive losses in magnetic components", IEEE Trans. Power Electronics, 1994 (orthogonality of skin and proximity loss)',
         '0.05 %',
@@ -424,4 +467,6 @@ def case_features(document: dict) -> set[str]:
         features.add("parallel")
     if document.get("thermal"):
         features.add("thermal")
+    if document.get("capacitance"):
+        features.add("capacitance")
     return features

@@ -38,14 +38,15 @@ ROW = re.compile(r"^(\S+)\s+\d+\s+\d+\s+\S+\s+\S+ A\s+(\S+) mOhm$")
 
 def _cut_sweep(path: Path) -> str:
     """The case text with [sweep] cut to 0 Hz and its lowest frequency, the
-    [compare] frequency moved there, and a waveform case held to 3 harmonics."""
+    [compare] frequency moved there, a waveform case held to 3 harmonics, and
+    no [thermal] or [dielectric] table (neither touches the DC resistance)."""
     freqs = [f for f in load_case(path).frequencies if f > 0.0]
     low = f"{min(freqs):.17g}" if freqs else "0"
     out, skipping = [], False
     for line in path.read_text().splitlines(keepends=True):
         if line.startswith("["):
-            skipping = line.strip() == "[sweep]"
-            if skipping:
+            skipping = line.strip() in ("[sweep]", "[thermal]", "[dielectric]")
+            if line.strip() == "[sweep]":
                 out.append(f"[sweep]\nfrequencies = [0, {low}]\n\n")
                 continue
         if not skipping:

@@ -12,11 +12,7 @@ _RANGE = (1.0, 1000.0)   #: relative permittivity: vacuum to ceramic fillers
 
 
 def _permittivity(table: Table, name: str, default: float) -> float:
-    value = table.quantity(name, "number", default, positive=True)
-    if not _RANGE[0] <= value <= _RANGE[1]:
-        raise CaseError(table.key(name), f"{value:g} is outside {_RANGE[0]:g}..{_RANGE[1]:g}",
-                        "give a relative permittivity, such as 3.5 for enamel")
-    return value
+    return table.within(name, "number", default, *_RANGE, "give a relative permittivity, such as 3.5 for enamel")
 
 
 def read_dielectric(top: Table, names: list[str]) -> Dielectric | None:

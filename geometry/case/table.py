@@ -57,6 +57,15 @@ class Table:
                             "give zero or a positive value")
         return in_range(number, kind, self.key(name), value)
 
+    def within(self, name: str, kind: str, default: float, low: float, high: float, fix: str,
+               unit: str = "") -> float:
+        """A positive quantity that must lie in ``low``..``high`` (in ``unit``
+        for the message); ``fix`` says what to give instead."""
+        value = self.quantity(name, kind, default, positive=True)
+        if not low <= value <= high:
+            raise CaseError(self.key(name), f"{value:g}{unit} is outside {low:g}..{high:g}", fix)
+        return value
+
     def text(self, name: str, default: str | None = None, choices: tuple[str, ...] = (),
              required: bool = False) -> str:
         value = self.raw(name, default, required)

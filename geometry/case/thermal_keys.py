@@ -12,11 +12,8 @@ _TEMPERATURE = (-200.0, 400.0)  #: degC, as [model] temperature
 
 
 def _conductivity(table: Table, name: str, default: float) -> float:
-    k = table.quantity(name, "thermal conductivity", default, positive=True)
-    if not _CONDUCTIVITY[0] <= k <= _CONDUCTIVITY[1]:
-        raise CaseError(table.key(name), f"{k:g} W/(m K) is outside {_CONDUCTIVITY[0]:g}..{_CONDUCTIVITY[1]:g}",
-                        'give a thermal conductivity such as "0.2 W/(m K)"')
-    return k
+    return table.within(name, "thermal conductivity", default, *_CONDUCTIVITY,
+                        'give a thermal conductivity such as "0.2 W/(m K)"', " W/(m K)")
 
 
 def _temperature(table: Table, name: str, default: float | None = None) -> float | None:

@@ -58,6 +58,22 @@ def _legs_without_gaps(y0: float, y1: float, gaps: list[tuple[float, float]]) ->
     return pieces
 
 
+def label_axes(ax: Axes, axisymmetric: bool) -> None:
+    """The section's axis labels in mm: r and z for rings, x and y otherwise."""
+    if axisymmetric:
+        ax.set_xlabel("r, radius from the axis (mm)")
+        ax.set_ylabel("z, height above the window bottom (mm)")
+    else:
+        ax.set_xlabel("x, from the inner wall (mm)")
+        ax.set_ylabel("y, from the window bottom (mm)")
+
+
+def fit_height(figure, ax: Axes, columns: int = 1, extra: float = 1.4) -> None:
+    """Size the figure to the drawn section's aspect (``columns`` sections side by side)."""
+    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+    figure.set_size_inches(6.5 * columns, min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + extra), 9.5))
+
+
 def draw_walls(ax: Axes, report: Report, s_mm: float, *, core_face=CORE_BODY, window_face=WINDOW_FACE) -> list:
     """Walls, core body, symmetry plane or axis; sets the view limits.  Returns
     legend handles for what was drawn.  ``core_face``, ``window_face``: the
@@ -189,15 +205,9 @@ def window_figure(report: Report, faces: Sequence, title: str, *, numbers: bool 
         drawn = draw_walls(ax, SimpleNamespace(case=section), s_mm)
         handles += [h for h in drawn if h.get_label() not in [x.get_label() for x in handles]]
         if k == 0:
-            (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
-            figure.set_size_inches(6.5 * len(sections), min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + 1.4), 9.5))
+            fit_height(figure, ax, len(sections))
         numbered |= _draw_conductors(ax, report, faces, s_mm, numbers)
-        if case.model.axisymmetric:
-            ax.set_xlabel("r, radius from the axis (mm)")
-            ax.set_ylabel("z, height above the window bottom (mm)")
-        else:
-            ax.set_xlabel("x, from the inner wall (mm)")
-            ax.set_ylabel("y, from the window bottom (mm)")
+        label_axes(ax, case.model.axisymmetric)
         if label:
             ax.set_title(label, fontsize=8)
     if numbered:

@@ -27,7 +27,7 @@ from racfield.geometry.layout import insulation_strips
 
 from ..plotting import linear_subtriangles, new_figure, save
 from ..report import Report
-from .geometry_plot import draw_walls
+from .geometry_plot import draw_walls, fit_height, label_axes
 
 POTENTIAL_MAP = "cividis"   #: perceptually uniform (and readable with colour-vision deficiency)
 EQUIPOTENTIALS = 8          #: about this many labelled equipotentials
@@ -152,14 +152,8 @@ def potential_figure(report: Report) -> Figure | None:
     _equipotentials(ax, tri, values, electrodes)
     _outlines(ax, report, s_mm)
     ax.set_aspect("equal")
-    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
-    figure.set_size_inches(6.5, min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + 1.6), 9.5))
-    if case.model.axisymmetric:
-        ax.set_xlabel("r, radius from the axis (mm)")
-        ax.set_ylabel("z, height above the window bottom (mm)")
-    else:
-        ax.set_xlabel("x, from the inner wall (mm)")
-        ax.set_ylabel("y, from the window bottom (mm)")
+    fit_height(figure, ax, extra=1.6)
+    label_axes(ax, case.model.axisymmetric)
     ax.set_title(_title(report), fontsize=9)
     bar = figure.colorbar(mappable, ax=ax, shrink=0.85)
     bar.set_label(BAR_LABEL)

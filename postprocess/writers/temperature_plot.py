@@ -24,7 +24,7 @@ from matplotlib.tri import Triangulation
 
 from ..plotting import new_figure, save
 from ..report import Report
-from .geometry_plot import draw_walls
+from .geometry_plot import draw_walls, fit_height, label_axes
 
 TEMPERATURE_MAP = "inferno"   #: perceptually uniform
 ISOTHERMS = 6                 #: about this many labelled isotherms
@@ -154,15 +154,9 @@ def temperature_figure(report: Report) -> Figure | None:
     _isotherms(ax, merged, merged_values, low, high, y_hot * 1e3)
     _outlines(ax, report, s_mm)
     ax.set_aspect("equal")
-    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
-    figure.set_size_inches(6.5, min(max(3.2, 4.8 * (y1 - y0) / (x1 - x0) + 1.4), 9.5))
+    fit_height(figure, ax, extra=1.4)
     _hot_spot(ax, x_hot * 1e3 + s_mm, y_hot * 1e3, high)
-    if case.model.axisymmetric:
-        ax.set_xlabel("r, radius from the axis (mm)")
-        ax.set_ylabel("z, height above the window bottom (mm)")
-    else:
-        ax.set_xlabel("x, from the inner wall (mm)")
-        ax.set_ylabel("y, from the window bottom (mm)")
+    label_axes(ax, case.model.axisymmetric)
     ax.set_title(_title(report), fontsize=9)
     bar = figure.colorbar(mappable, ax=ax, shrink=0.85)
     bar.set_label("temperature (degC)")

@@ -133,10 +133,10 @@ def whole_turns(per_m: np.ndarray, lengths: np.ndarray) -> np.ndarray:
     pair[:-1, -1] = pair[-1, :-1] = lengths
     branch = -per_m * pair
     np.fill_diagonal(branch, 0.0)
-    # what no electrode of the model receives (zero in a closed window) stays with each turn
-    rest = per_m.sum(axis=1) * np.append(lengths, lengths.mean() if len(lengths) else 0.0)
+    # every branch ends on an electrode (the Maxwell matrix's rows sum to zero): the
+    # diagonal is the sum of a row's branches
     out = -branch
-    out[np.diag_indices(len(per_m))] = branch.sum(axis=1) + rest
+    out[np.diag_indices(len(per_m))] = branch.sum(axis=1)
     return out
 
 

@@ -250,7 +250,8 @@ def solve_case_thermal(sweep: _Sweep, progress: Callable[[int, float], None] | N
     field solution."""
     case, thermal = sweep.case, sweep.case.thermal
     excitations, words, rms = operating_point(case)
-    k = _conductivity(sweep, thermal_basis(sweep.window_mesh))
+    basis = thermal_basis(sweep.window_mesh)
+    k = _conductivity(sweep, basis)
     fixed, convective = _boundaries(sweep)
     resistance = surface_resistance(sweep)
     lengths = turn_lengths(case, sweep.conductors).metres
@@ -258,7 +259,7 @@ def solve_case_thermal(sweep: _Sweep, progress: Callable[[int, float], None] | N
     ceiling = thermal.max_temperature
 
     system = ThermalSystem(sweep.window_mesh, k, fixed=fixed, convective=convective,
-                           radius_offset=case.axis_offset, surface_resistance=resistance)
+                           radius_offset=case.axis_offset, surface_resistance=resistance, basis=basis)
     temperatures = system.solve   # the conduction matrix does not change: one LU serves every iteration
 
     flat = np.full(len(sweep.conductors), case.model.temperature_c)

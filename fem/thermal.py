@@ -224,14 +224,9 @@ def _pad(matrix: sp.spmatrix, size: int) -> sp.csr_matrix:
 
 
 def thermal_basis(window_mesh) -> Basis:
-    """The P2 basis of the thermal solution on ``window_mesh`` (for
-    conductivities at its quadrature points, see :func:`solve_temperature`)."""
-    return _basis(window_mesh)
-
-
-def _basis(window_mesh) -> Basis:
-    """The P2 basis on the mesh's 6-node triangles (``points`` (2, n) m,
-    ``triangles`` (6, m)), as in :class:`racfield.fem.problem.WindowProblem`."""
+    """The P2 basis of the thermal solution on ``window_mesh`` (``points`` (2, n) m,
+    ``triangles`` (6, m)), as in :class:`racfield.fem.problem.WindowProblem`; for
+    conductivities at its quadrature points (see :class:`ThermalSystem`)."""
     return Basis(MeshTri2(window_mesh.points, window_mesh.triangles), ElementTriP2())
 
 
@@ -341,8 +336,9 @@ class ThermalSystem:
     for planar, or r0 (m) with r = x + r0 for an axisymmetric model;
     ``surface_resistance`` (Nc, 2) m^2 K/W: a thin resistive layer on each
     conductor's surface, on its faces whose normal lies along x and along y
-    (see the module docstring; None or zeros: none).  At least one fixed or
-    convective condition must hold the temperature level.  A solution's
+    (see the module docstring; None or zeros: none); ``basis``: the
+    :func:`thermal_basis` of the mesh when the caller has it already.  At
+    least one fixed or convective condition must hold the temperature level.  A solution's
     ``temperature`` and ``nodes`` hold both sides' values of a doubled DOF
     (the nodes repeated).
     """
@@ -350,12 +346,13 @@ class ThermalSystem:
     def __init__(self, window_mesh, conductivity: np.ndarray, *,
                  fixed: FixedTemperature | Sequence[FixedTemperature] | None = None,
                  convective: Convection | Sequence[Convection] | None = None,
-                 radius_offset: float | None = None, surface_resistance: np.ndarray | None = None) -> None:
+                 radius_offset: float | None = None, surface_resistance: np.ndarray | None = None,
+                 basis: Basis | None = None) -> None:
         fixed = [fixed] if isinstance(fixed, FixedTemperature) else list(fixed or [])
         convective = [convective] if isinstance(convective, Convection) else list(convective or [])
         if not fixed and not convective:
             raise ValueError("an adiabatic domain has no steady temperature: fix T or add convection")
-        self.basis = basis = _basis(window_mesh)
+        self.basis = basis = thermal_basis(window_mesh) if basis is None else basis
         conductivity = np.asarray(conductivity, dtype=float)
         nqp = basis.X.shape[1]
         if conductivity.shape == (basis.nelems,):

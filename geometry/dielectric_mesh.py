@@ -199,7 +199,7 @@ def build_dielectric_mesh(conductors: list[Conductor], strips: list[tuple[float,
         if not fields:
             fields = [gmsh.model.mesh.field.add("MathEval")]
             gmsh.model.mesh.field.setString(fields[0], "F", repr(h_max))
-        _generate(fields, h_max)
+        _generate(fields, h_max, 1.0)
         points, triangles, region = _read_triangles(owner)
     finally:
         gmsh.finalize()

@@ -16,7 +16,7 @@ import numpy as np
 
 from .case import Core
 from .layout import Conductor
-from .sizing import MeshSizing, surface_size  # noqa: F401 (mesher's public names)
+from .sizing import MeshSizing, base_surface_size, corner_size, surface_size  # noqa: F401 (public names)
 
 AIR = -1
 """Region number of air (non-conducting, non-magnetic) elements."""
@@ -170,7 +170,8 @@ def _restricted_threshold(dist: int, surfaces: list[int], h: float, h_max: float
 def _surface_fields(sizes: list[float], conductor_surfaces: list[list[int]], metal_surfaces: list[int],
                     outside_surfaces: list[int], sizing: MeshSizing, h_max: float) -> list[int]:
     """Size fields from the conductor surfaces, one distance per surface size
-    (m): fine at the surface, growing slowly inside the metal and fast outside."""
+    (m, at density 1): fine at the surface, growing slowly inside the metal
+    and fast outside."""
     skin = min(sizing.skin_depth, 1.0)
     field_ids = []
     for h in sorted(set(round(s, 15) for s in sizes)):
@@ -180,7 +181,8 @@ def _surface_fields(sizes: list[float], conductor_surfaces: list[list[int]], met
         longest = max(gmsh.model.occ.getMass(1, t) for t in curves)
         dist = gmsh.model.mesh.field.add("Distance")
         gmsh.model.mesh.field.setNumbers(dist, "CurvesList", curves)
-        gmsh.model.mesh.field.setNumber(dist, "Sampling", int(min(max(20, 2 * longest / h), 20000)))
+        gmsh.model.mesh.field.setNumber(dist, "Sampling",
+                                        int(min(max(20, 2 * longest * sizing.density / h), 20000)))
         # inside the metal: fine over about one skin depth, then growing
         # slowly; in the air the field is smooth, so the size grows fast
         for surfaces, dist_min, grading in ((metal_surfaces, min(skin, 4 * h), sizing.grading),
@@ -192,11 +194,12 @@ def _surface_fields(sizes: list[float], conductor_surfaces: list[list[int]], met
 
 def _interior_fields(conductors: list[Conductor], sizes: list[float], conductor_surfaces: list[list[int]],
                      sizing: MeshSizing) -> list[int]:
-    """Caps on the size inside each conductor: no coarser than a quarter of its size (m)."""
+    """Caps on the size inside each conductor: no coarser than a quarter of
+    its size (m, at density 1)."""
     interior = []
     for i, c in enumerate(conductors):
         cap = gmsh.model.mesh.field.add("Constant")
-        gmsh.model.mesh.field.setNumber(cap, "VIn", max(min(c.width, c.height) / 4 / sizing.density, sizes[i]))
+        gmsh.model.mesh.field.setNumber(cap, "VIn", max(min(c.width, c.height) / 4, sizes[i]))
         gmsh.model.mesh.field.setNumber(cap, "VOut", 1e22)
         gmsh.model.mesh.field.setNumbers(cap, "SurfacesList", conductor_surfaces[i])
         interior.append(cap)
@@ -216,15 +219,18 @@ def _window_box(core: Core | None, width: float, height: float, symmetry_x: floa
     return box
 
 
-def _generate(fields: list[int], h_max: float) -> None:
-    """Mesh with the smallest of ``fields`` as the size, then raise to order 2."""
+def _generate(fields: list[int], h_max: float, density: float) -> None:
+    """Mesh with the smallest of ``fields`` (sizes at density 1, m) divided by
+    ``density`` as the size, then raise to order 2."""
     least = gmsh.model.mesh.field.add("Min")
     gmsh.model.mesh.field.setNumbers(least, "FieldsList", fields)
-    gmsh.model.mesh.field.setAsBackgroundMesh(least)
+    scaled = gmsh.model.mesh.field.add("MathEval")
+    gmsh.model.mesh.field.setString(scaled, "F", f"F{least} / {density!r}")
+    gmsh.model.mesh.field.setAsBackgroundMesh(scaled)
     gmsh.option.setNumber("Mesh.MeshSizeExtendFromBoundary", 0)
     gmsh.option.setNumber("Mesh.MeshSizeFromPoints", 0)
     gmsh.option.setNumber("Mesh.MeshSizeFromCurvature", 0)
-    gmsh.option.setNumber("Mesh.MeshSizeMax", h_max)
+    gmsh.option.setNumber("Mesh.MeshSizeMax", h_max / density)
     gmsh.option.setNumber("Mesh.Algorithm", 6)
     gmsh.model.mesh.generate(2)
     gmsh.model.mesh.setOrder(2)
@@ -264,22 +270,22 @@ def _mesh_in_session(conductors: list[Conductor], width: float, height: float, b
     occ.synchronize()
     conductor_surfaces, owner, core_surfaces = _owners(mapping, len(conductors))
 
-    sizes = [surface_size(c, sizing) for c in conductors]
+    # every size at density 1; _generate divides the whole field by the density
+    sizes = [base_surface_size(c, sizing) for c in conductors]
     h_min = min(sizes)
-    h_window = min(width, height) / 6 / sizing.density
-    h_max = (domain.far_radius / 6 if domain.far_radius else min(width, height) / 6) / sizing.density
-    h_max = max(h_max, h_min)
+    h_window = min(width, height) / 6
+    h_max = max(domain.far_radius / 6 if domain.far_radius else min(width, height) / 6, h_min)
     air_surfaces = [tag for _, tag in gmsh.model.getEntities(2) if tag not in owner]
     metal_surfaces = sorted(t for t, k in owner.items() if k >= 0)
     fields = _surface_fields(sizes, conductor_surfaces, metal_surfaces, air_surfaces + core_surfaces, sizing, h_max)
     fields += _interior_fields(conductors, sizes, conductor_surfaces, sizing)
     # the window (and core) region: no coarser than a sixth of the window
     fields.append(_window_box(core if core_surfaces else None, width, height, domain.symmetry_x, h_window))
-    if core_surfaces and core.gaps:
-        fields.append(_gap_corner_field(core, width, height, h_max, sizing))
-    _generate(fields, h_max)
+    if core_surfaces:
+        fields.append(_corner_field(core_surfaces, domain.symmetry_x, core, min(width, height), h_max, sizing))
+    _generate(fields, h_max, sizing.density)
     points, triangles, region = _read_triangles(owner)
-    return points, triangles, region, h_min, domain
+    return points, triangles, region, h_min / sizing.density, domain
 
 
 def build_mesh(conductors: list[Conductor], width: float, height: float, boundary: str,
@@ -305,22 +311,22 @@ def build_mesh(conductors: list[Conductor], width: float, height: float, boundar
                       domain.symmetry_x, domain.wall_x)
 
 
-def _gap_corner_field(core: Core, width: float, height: float, h_max: float, sizing: MeshSizing) -> int:
-    """Refine around the gap corners, where the fringing field is strongest."""
-    corners = []
-    for gap in core.gaps:
-        xs = ((-core.centre_leg_width / 2, 0.0) if gap.leg == "centre"
-              else (width, width + core.outer_leg_width))
-        for x in xs:
-            for y in (gap.at - gap.length / 2, gap.at + gap.length / 2):
-                eps = 1e-9 + 1e-6 * gap.length
-                corners += [tag for _, tag in gmsh.model.getEntitiesInBoundingBox(
-                    x - eps, y - eps, -eps, x + eps, y + eps, eps, dim=0)]
-    h_gap = min(min(g.length for g in core.gaps) / 4 / sizing.density, h_max)
+def _corner_field(core_surfaces: list[int], symmetry_x: float | None, core: Core, window_side: float,
+                  h_max: float, sizing: MeshSizing) -> int:
+    """Refine around the core body's corners (m, at density 1): the gap
+    corners, where the fringing field is strongest, the window's corners and
+    the outer corners, where the field is singular at a 90 or 270 degree edge
+    of magnetic material.  Points on the symmetry plane or axis are not
+    corners of the whole core."""
+    curves = {abs(t) for tag in core_surfaces for _, t in gmsh.model.getBoundary([(2, tag)], oriented=False)}
+    points = {abs(t) for c in curves for _, t in gmsh.model.getBoundary([(1, c)], oriented=False)}
+    if symmetry_x is not None:
+        points = {p for p in points if abs(gmsh.model.getValue(0, p, [])[0] - symmetry_x) > 1e-12}
+    h_corner = min(corner_size([g.length for g in core.gaps], window_side, sizing), h_max)
     dist = gmsh.model.mesh.field.add("Distance")
-    gmsh.model.mesh.field.setNumbers(dist, "PointsList", sorted(set(corners)))
+    gmsh.model.mesh.field.setNumbers(dist, "PointsList", sorted(points))
     thr = gmsh.model.mesh.field.add("Threshold")
-    for name, value in (("InField", dist), ("SizeMin", h_gap), ("SizeMax", h_max), ("DistMin", h_gap),
-                        ("DistMax", h_gap + (h_max - h_gap) / sizing.air_grading)):
+    for name, value in (("InField", dist), ("SizeMin", h_corner), ("SizeMax", h_max), ("DistMin", 0.0),
+                        ("DistMax", (h_max - h_corner) / sizing.air_grading)):
         gmsh.model.mesh.field.setNumber(thr, name, value)
     return thr

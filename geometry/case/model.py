@@ -199,6 +199,7 @@ class MeshOptions:
     density: float = 1.0           #: >1 finer, <1 coarser than the default sizing
     far_radius_factor: float = 5.0  #: open boundary: far circle / window half-diagonal
     frequency: float | None = None  #: Hz, size the mesh for this frequency (None: the highest solved)
+    corner_refinement: float = 1.0  #: extra refinement at gap and core corners (>1 finer)
 
 
 @dataclass(frozen=True)

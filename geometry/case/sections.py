@@ -420,7 +420,7 @@ def plan_waveforms(windings: list[Winding], settings: WaveformSettings
 
 
 def read_mesh(table: Table) -> MeshOptions:
-    """[mesh]: density, far_radius_factor, frequency."""
+    """[mesh]: density, far_radius_factor, frequency, corner_refinement."""
     density = table.quantity("density", "number", 1.0, positive=True)
     far = table.quantity("far_radius_factor", "number", 5.0, positive=True)
     if not 0.01 <= density <= 100.0:
@@ -434,8 +434,10 @@ def read_mesh(table: Table) -> MeshOptions:
                         "use 100 or less (default 5)")
     mesh_frequency = (table.quantity("frequency", "frequency", positive=True)
                       if table.has("frequency") else None)
+    corners = table.within("corner_refinement", "number", 1.0, 0.1, 100.0,
+                           "use a factor near 1 (2 halves the element sizes at gap and core corners)")
     table.close()
-    return MeshOptions(density, far, mesh_frequency)
+    return MeshOptions(density, far, mesh_frequency, corners)
 
 
 def read_end_turns(top: Table, model: Model) -> EndTurns | None:

@@ -52,14 +52,14 @@ class WindingResult:
 class Report:
     """Everything the writers need.  ``estimates``: the hand estimates of
     :func:`postprocess.estimates.hand_estimates` for the same frequencies;
-    ``mesh_check``: the refined-mesh check of :mod:`postprocess.mesh_check`
-    (None when not asked for)."""
+    ``error_estimate``: the discretization-error estimate of
+    :mod:`racfield.mesh_check` (None when not asked for)."""
 
     case: Case
     sweep: SweepResult
     windings: list[WindingResult]
     estimates: dict
-    mesh_check: dict | None = None
+    error_estimate: dict | None = None
 
     @cached_property
     def magnetic(self) -> dict:
@@ -182,7 +182,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         "sweep": dict(sweep.sweep_info) or {"method": "point-by-point", "expansion_hz": [],
                                             "max_check_deviation": None},
         "warnings": [dict(w) for w in sweep.warnings],
-        **({"mesh_check": report.mesh_check} if report.mesh_check is not None else {}),
+        **({"error_estimate": report.error_estimate} if report.error_estimate is not None else {}),
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),

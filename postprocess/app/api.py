@@ -96,8 +96,9 @@ def solve(case: Case, *, exact: bool = False, progress: Progress | None = None,
     ``exact``: one full solve per frequency (no reduced-order sweep), as
     ``racfield run --exact``.  ``progress(done, total, frequency_hz)``: called
     after every solved frequency.  ``check_mesh``: also solve the highest
-    frequency on a mesh with element sizes halved (``racfield run
-    --check-mesh``; its result in ``results.document["mesh_check"]``).
+    frequency on two finer meshes and estimate the discretization error of
+    every winding's Rac and L by Richardson extrapolation (``racfield run
+    --check-mesh``; its result in ``results.document["error_estimate"]``).
 
     A case with ``[[variant]]`` tables or a ``[study]`` is several
     arrangements: ValueError, naming :func:`variant_cases`, whose cases are
@@ -119,7 +120,7 @@ def solve_report(case: Case, *, exact: bool = False, progress: Progress | None =
     from racfield.fem.whole_turns import run_case_sweep
     from racfield.postprocess.report import build_report
 
-    from .mesh_check import mesh_check
+    from .mesh_check import error_estimate
 
     # one BLAS thread, as in a worker of the pool: every way of running gives the same numbers
     with threadpool_limits(limits=1):
@@ -127,5 +128,5 @@ def solve_report(case: Case, *, exact: bool = False, progress: Progress | None =
                                     done=done, on_point=on_point)
         report = build_report(case, sweep)
         if check_mesh:
-            report.mesh_check = mesh_check(report)
+            report.error_estimate = error_estimate(report)
     return report

@@ -232,8 +232,8 @@ def parser() -> argparse.ArgumentParser:
     run.add_argument("--cluster", metavar="ADDRESS",
                      help="run the variants on an existing Dask scheduler, e.g. tcp://10.0.0.5:8786")
     run.add_argument("--check-mesh", action="store_true",
-                     help="solve the highest frequency again with element sizes halved and report "
-                          "the change of each winding's Rac (an estimate of the mesh error)")
+                     help="solve the highest frequency again on meshes with element sizes over sqrt(2) and 2, "
+                          "and report the estimated discretization error of each winding's Rac and L")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")

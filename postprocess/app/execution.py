@@ -66,7 +66,7 @@ class Outcome:
     sweep: "SweepResult | None"
     error: str | None
     files: dict[str, bytes] | None = None
-    mesh_check: dict | None = None
+    error_estimate: dict | None = None
 
 
 def _render(report: "Report") -> dict[str, bytes]:
@@ -82,9 +82,9 @@ def _render(report: "Report") -> dict[str, bytes]:
 
 
 def solve_job(case: Case, exact: bool, render: bool = False, check_mesh: bool = False):
-    """Run in a worker: (sweep, files, mesh check, None) of one variant, or
+    """Run in a worker: (sweep, files, error estimate, None) of one variant, or
     (None, None, None, its one-line error).  ``render``: also make the result
-    files there (and the mesh check, if asked for), so that the client only
+    files there (and the error estimate, if asked for), so that the client only
     writes bytes."""
     from threadpoolctl import threadpool_limits
 
@@ -95,7 +95,7 @@ def solve_job(case: Case, exact: bool, render: bool = False, check_mesh: bool = 
             report = solve_report(case, exact=exact, check_mesh=check_mesh and render)
             if not render:
                 return report.sweep, None, None, None
-            return report.sweep, _render(report), report.mesh_check, None
+            return report.sweep, _render(report), report.error_estimate, None
         except CaseError as error:
             return None, None, None, error.line()
         except Exception as error:  # a bug in one variant must not stop the others

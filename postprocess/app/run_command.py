@@ -29,7 +29,7 @@ from racfield.postprocess.writers import WRITERS, write_all
 from .api import solve_report
 from .checkpoint import RunState, fingerprint
 from .execution import Job, Outcome, arrangements, default_workers, run_jobs
-from .mesh_check import mesh_check_line
+from .mesh_check import error_estimate_lines
 
 EXIT_OK, EXIT_PARTIAL = 0, 3
 
@@ -156,8 +156,8 @@ def _write_one(report: Report, out: Path, state: RunState, key: str, files: dict
     if info.get("method") == "reduced":
         print(f"sweep: reduced model from {len(info['expansion_hz'])} full solves, "
               f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
-    if report.mesh_check is not None:
-        print(mesh_check_line(report.mesh_check))
+    if report.error_estimate is not None:
+        print("\n".join(error_estimate_lines(report.error_estimate)))
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
     return results_document(report)
@@ -230,7 +230,7 @@ def command_run(args, case: Case) -> int:
             if outcome.error is not None:
                 return failed(outcome.key, outcome.error)
             report = build_report(cases[outcome.key], outcome.sweep)
-            report.mesh_check = outcome.mesh_check
+            report.error_estimate = outcome.error_estimate
             documents[outcome.key] = (names[outcome.key], _write_one(report, folders[outcome.key], state,
                                                                      outcome.key, outcome.files))
 

@@ -24,6 +24,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from racfield.geometry.case.units import format_frequency
+
 #: the highest order used: energy-type quantities of quadratic elements converge as h^4
 ORDER_LIMIT = 4.0
 
@@ -58,3 +60,23 @@ def richardson(values: tuple[float, float, float], ratio: float) -> Extrapolatio
         error = d1 / (1.0 - ratio ** -min(order, ORDER_LIMIT))
         return Extrapolation(error / q0, order, True, q0 - error)
     return Extrapolation((q0 - q2) / q0, None, False, q2)
+
+
+def estimate_text(entry: dict | None) -> str:
+    """An entry of ``error_estimate`` as short text: "+0.033 % (order 3.7)"."""
+    if not entry:
+        return "-"
+    order = (f"order {entry['observed_order']:.2g}" if entry.get("asymptotic") and entry.get("observed_order")
+             else "exact on every mesh" if entry.get("asymptotic") else "not asymptotic")
+    return f"{100 * entry['error']:+.2g} % ({order})"
+
+
+def estimate_note(estimate: dict) -> str:
+    """One sentence on how the ``error_estimate`` of results.json was found."""
+    densities = ", ".join(f"{d:.3g}" for d in estimate["densities"])
+    unknowns = ", ".join(str(n) for n in estimate["unknowns"])
+    leakage = estimate.get("leakage")
+    return (f"Discretization error estimated at {format_frequency(estimate['frequency_hz'])} by Richardson "
+            f"extrapolation with the observed order (capped at {estimate.get('order_limit', ORDER_LIMIT):g}) from "
+            f"meshes of density {densities} ({unknowns} unknowns); the sign is that of the reported value minus "
+            f"the converged one" + (f"; leakage inductance {estimate_text(leakage)}" if leakage else "") + ".")

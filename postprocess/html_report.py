@@ -17,6 +17,7 @@ from racfield.geometry.case.units import format_frequency
 
 from . import results_file
 from .atomic import replace_text
+from .error_estimate import estimate_note, estimate_text
 from .html_capacitance import capacitance_section
 from .html_parts import Page as _Page, cell as _cell, eng, esc, image as _image, table as _table
 from .html_thermal import temperature_section
@@ -132,6 +133,9 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
     ends = sorted({0, len(freqs) - 1})
     if self_l:
         head += [f"self L at {_freq(freqs[i])}" for i in ends]
+    estimate = doc.get("error_estimate")
+    if estimate:
+        head += ["Rac error (estimate)", "L error (estimate)"]
     rows = []
     for name, w in doc["windings"].items():
         row = [name, str(w.get("turns", "")), eng(w.get("current_a_rms"), "A"), f"{w.get('phase_deg', 0):g}\u00b0",
@@ -140,11 +144,14 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
         row += [eng(_at(w.get("loss_w"), len(freqs) - 1), "W")]
         if self_l:
             row += [eng(_at(self_l.get(name), i), "H") for i in ends]
+        if estimate:
+            entries = (estimate.get("windings") or {}).get(name) or {}
+            row += [estimate_text(entries.get("rac")), estimate_text(entries.get("l"))]
         rows.append(row)
     total = doc.get("total_loss_w")
     if total:
         rows.append(["all windings", "", "", "", ""] + [""] * len(at) + [eng(_at(total, len(freqs) - 1), "W")]
-                    + ([""] * len(ends) if self_l else []))
+                    + ([""] * len(ends) if self_l else []) + (["", ""] if estimate else []))
     page.add(_table(head, rows, numeric=set(range(1, len(head)))))
     lines = []
     ends_text = " / ".join(_freq(freqs[i]) for i in ends)
@@ -159,6 +166,8 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
     if not self_l and not magnetizing and doc.get("loss_matrix", {}).get("balanced_only"):
         lines.append("Ideal-core window: the magnetizing inductance is infinite, so no self inductance is reported; "
                      "only balanced (ampere-turn-free) currents exist.")
+    if estimate:
+        lines.append(estimate_note(estimate))
     for line in lines:
         page.add(f"<p>{esc(line)}</p>")
     _whole_turns(page, doc, at)

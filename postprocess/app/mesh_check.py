@@ -25,7 +25,7 @@ import numpy as np
 
 from racfield.fem.whole_turns import run_case_sweep
 from racfield.geometry.case.units import format_frequency
-from racfield.postprocess.error_estimate import ORDER_LIMIT, richardson
+from racfield.postprocess.error_estimate import ORDER_LIMIT, estimate_text, richardson
 from racfield.postprocess.report import Report, winding_results
 
 #: element sizes shrink by this factor from one mesh to the next
@@ -86,22 +86,15 @@ def error_estimate(report: Report, refinement: float = REFINEMENT) -> dict:
             "leakage": entry("leakage", "h")}
 
 
-def _percent(entry: dict | None) -> str:
-    if entry is None:
-        return "-"
-    order = (f"order {entry['observed_order']:.2g}" if entry["asymptotic"] else "not asymptotic")
-    return f"{100 * entry['error']:+.2g} % ({order})"
-
-
 def error_estimate_lines(estimate: dict) -> list[str]:
     """Lines for the terminal: the estimated error of each winding's Rac and L."""
     densities = ", ".join(f"{d:.3g}" for d in estimate["densities"])
     unknowns = ", ".join(str(n) for n in estimate["unknowns"])
     lines = [f"error estimate at {format_frequency(estimate['frequency_hz'])} (Richardson, densities "
-             f"{densities}; {unknowns} unknowns):"]
+             f"{densities}; {unknowns} unknowns; reported minus converged):"]
     for name, entries in estimate["windings"].items():
-        lines.append(f"  {name}: Rac {_percent(entries['rac'])}" +
-                     (f", L {_percent(entries['l'])}" if entries["l"] is not None else ""))
+        lines.append(f"  {name}: Rac {estimate_text(entries['rac'])}" +
+                     (f", L {estimate_text(entries['l'])}" if entries["l"] is not None else ""))
     if estimate["leakage"] is not None:
-        lines.append(f"  leakage inductance {_percent(estimate['leakage'])}")
+        lines.append(f"  leakage inductance {estimate_text(estimate['leakage'])}")
     return lines

@@ -143,6 +143,8 @@ def _write_one(report: Report, out: Path, state: RunState, key: str, files: dict
     state.finish(key)
     print(f"== {case.title}")
     print(_summary_table(report))
+    if report.error_estimate is not None:
+        print("\n".join(error_estimate_lines(report.error_estimate)))
     print(_inductance_lines(report))
     harmonics = report.harmonics
     if harmonics is not None:
@@ -156,8 +158,6 @@ def _write_one(report: Report, out: Path, state: RunState, key: str, files: dict
     if info.get("method") == "reduced":
         print(f"sweep: reduced model from {len(info['expansion_hz'])} full solves, "
               f"largest deviation at the check frequencies {100 * info['max_check_deviation']:.2g} %")
-    if report.error_estimate is not None:
-        print("\n".join(error_estimate_lines(report.error_estimate)))
     print("wrote: " + ", ".join(str(p) for p in written))
     print(f"note: {CAUTION}\n")
     return results_document(report)

@@ -327,6 +327,6 @@ def _corner_field(core_surfaces: list[int], symmetry_x: float | None, core: Core
     gmsh.model.mesh.field.setNumbers(dist, "PointsList", sorted(points))
     thr = gmsh.model.mesh.field.add("Threshold")
     for name, value in (("InField", dist), ("SizeMin", h_corner), ("SizeMax", h_max), ("DistMin", 0.0),
-                        ("DistMax", (h_max - h_corner) / sizing.air_grading)):
+                        ("DistMax", (h_max - h_corner) / sizing.corner_grading)):
         gmsh.model.mesh.field.setNumber(thr, name, value)
     return thr

@@ -40,10 +40,11 @@ class MeshSizing:
     per_circle: int = 28         #: elements around a round conductor at least
     per_side: int = 2            #: elements across the shortest side of a rectangle at least
     grading: float = 0.35        #: size growth per unit distance inside conductors
-    air_grading: float = 0.8     #: size growth per unit distance in air
+    air_grading: float = 0.5     #: size growth per unit distance in air
     density: float = 1.0         #: overall refinement factor (>1 finer)
     corner_refinement: float = 1.0  #: extra refinement at gap and core corners (>1 finer)
-    corner_ratio: float = 1000.0  #: corner size: the smallest of gap, skin depth and window side over this
+    corner_ratio: float = 300.0  #: corner size: the smallest of gap, skin depth and window side over this
+    corner_grading: float = 1.0  #: size growth per unit distance from a core corner
 
 
 def base_surface_size(conductor: Conductor, sizing: MeshSizing) -> float:
@@ -64,7 +65,7 @@ def corner_size(gap_lengths: list[float], window_side: float, sizing: MeshSizing
     """Element size in m at the corners of a core body at density 1: the
     smallest of the gap lengths, the skin depth and the window's shorter side,
     over ``corner_ratio`` and ``corner_refinement``.  The mesh grades
-    geometrically (``air_grading``) into the corner, where the field of a
+    geometrically (``corner_grading``) into the corner, where the field of a
     right-angle edge of magnetic material is singular (A ~ r^(2/3)), so a
     tiny corner size costs only a few rings of elements."""
     return min([*gap_lengths, window_side, sizing.skin_depth]) / sizing.corner_ratio / sizing.corner_refinement

@@ -46,12 +46,12 @@ def _values(report: Report, top: int) -> dict[str, float | None]:
     return values
 
 
-def _companion(case, frequency: float, density: float) -> tuple[Report, int]:
-    """The case solved at ``frequency`` alone on a mesh of ``density``; (report, unknowns)."""
+def _companion(case, frequency: float, density: float) -> Report:
+    """The case solved at ``frequency`` alone on a mesh of ``density``."""
     companion = replace(case, frequencies=(frequency,), thermal=None, dielectric=None,
                         mesh=replace(case.mesh, density=density, frequency=case.mesh_frequency))
     sweep = run_case_sweep(companion, method="exact")
-    return Report(companion, sweep, winding_results(companion, sweep), {}), sweep.unknowns
+    return Report(companion, sweep, winding_results(companion, sweep), {})
 
 
 def error_estimate(report: Report, refinement: float = REFINEMENT) -> dict:
@@ -69,9 +69,9 @@ def error_estimate(report: Report, refinement: float = REFINEMENT) -> dict:
     densities = [case.mesh.density * refinement ** k for k in range(3)]
     levels, unknowns = [_values(report, top)], [sweep.unknowns]
     for density in densities[1:]:
-        finer, n = _companion(case, frequency, density)
+        finer = _companion(case, frequency, density)
         levels.append(_values(finer, 0))
-        unknowns.append(n)
+        unknowns.append(finer.sweep.unknowns)
 
     def entry(key: str, unit: str) -> dict | None:
         values = [level[key] for level in levels]

@@ -40,7 +40,7 @@ class MeshSizing:
     per_circle: int = 28         #: elements around a round conductor at least
     per_side: int = 2            #: elements across the shortest side of a rectangle at least
     grading: float = 0.35        #: size growth per unit distance inside conductors
-    air_grading: float = 0.5     #: size growth per unit distance in air
+    air_grading: float = 0.35    #: size growth per unit distance in air
     density: float = 1.0         #: overall refinement factor (>1 finer)
     corner_refinement: float = 1.0  #: extra refinement at gap and core corners (>1 finer)
     corner_ratio: float = 300.0  #: corner size: the smallest of gap, skin depth and window side over this

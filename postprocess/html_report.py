@@ -135,7 +135,7 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
         head += [f"self L at {_freq(freqs[i])}" for i in ends]
     estimate = doc.get("error_estimate")
     if estimate:
-        head += ["Rac error (estimate)", "L error (estimate)"]
+        head += ["Rac and loss error (estimate)", "L error (estimate)"]
     rows = []
     for name, w in doc["windings"].items():
         row = [name, str(w.get("turns", "")), eng(w.get("current_a_rms"), "A"), f"{w.get('phase_deg', 0):g}\u00b0",
@@ -146,7 +146,7 @@ def _summary(page: _Page, doc: dict, prefix: str, level: int) -> None:
             row += [eng(_at(self_l.get(name), i), "H") for i in ends]
         if estimate:
             entries = (estimate.get("windings") or {}).get(name) or {}
-            row += [estimate_text(entries.get("rac")), estimate_text(entries.get("l"))]
+            row += [estimate_text(entries.get("rac") or entries.get("loss")), estimate_text(entries.get("l"))]
         rows.append(row)
     total = doc.get("total_loss_w")
     if total:

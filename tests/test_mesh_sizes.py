@@ -12,7 +12,7 @@ rules of this mesher, not published facts):
 * conductor interior: fine to min(skin depth, 4 h) below the surface (h the
   surface size), then growing by 0.35 per unit distance, capped at
   max(shorter side / 4, h);
-* air: growing by 0.5 per unit distance from the conductor surfaces; the
+* air: growing by 0.35 per unit distance from the conductor surfaces; the
   window (and core body) capped at min(W, H) / 6; everywhere capped at the far
   radius / 6 (open and core models) or min(W, H) / 6 (closed window);
 * core body: every corner (gap corners, window corners, outer corners) at
@@ -314,8 +314,8 @@ def test_conductor_interior_sizes_halve(index, shape, depth):
 
 def test_window_air_sizes_halve():
     """Air of the ideal-core window farther than 12 mm from both conductors,
-    where the cap min(W, H) / 6 = 5 mm rules (the grading 0.5 per unit
-    distance from a 0.14 mm surface size reaches it at 10 mm; common practice)."""
+    where the cap min(W, H) / 6 = 5 mm rules (the grading 0.35 per unit
+    distance from a 0.14 mm surface size reaches it at about 14 mm, so the mean there is a little below the cap; common practice)."""
     sizes = sizes_over_densities(lambda m, c: air_size_away(m, c, 12e-3, (0.0, 30e-3, 0.0, 30e-3)), "window")
     assert_halves("window air away from the conductors", sizes)
     # a Delaunay mesh's triangles average a little below the size field's value
@@ -328,7 +328,7 @@ def test_window_air_sizes_halve():
 def test_bore_sizes_halve():
     """The bore of an axisymmetric open coil: the air between the axis
     (x = -inner_radius) and the coil's inner radius (x = 0), from half the
-    inner radius below the window to as far above it; its size grows by 0.5
+    inner radius below the window to as far above it; its size grows by 0.35
     per unit distance from the turns (common practice)."""
     box = (-INNER_RADIUS, 0.0, -INNER_RADIUS / 2, 8e-3 + INNER_RADIUS / 2)
     sizes = sizes_over_densities(lambda m, c: air_size_away(m, c, 0.0, box), "open")

@@ -33,14 +33,17 @@ REFINEMENT = math.sqrt(2.0)
 
 
 def _values(report: Report, top: int) -> dict[str, float | None]:
-    """Rac (ohm) and L (H) of every winding and the leakage inductance at
-    frequency index ``top``: {"rac:NAME", "l:NAME", "leakage"}; None where
-    there is none (no current; an ideal-core window has no self inductance)."""
+    """Rac (ohm), loss (W) and L (H) of every winding and the leakage
+    inductance at frequency index ``top``: {"rac:NAME", "loss:NAME",
+    "l:NAME", "leakage"}; None where there is none (no current; an
+    ideal-core window has no self inductance).  A winding without current
+    has no Rac but may have a loss (proximity loss in a passive winding)."""
     magnetic = report.magnetic
     self_l = (magnetic.get("inductance") or {}).get("self_l_h") or {}
     values: dict[str, float | None] = {}
     for w in report.windings:
         values[f"rac:{w.name}"] = w.rac_ohm[top]
+        values[f"loss:{w.name}"] = w.loss_w[top]
         values[f"l:{w.name}"] = self_l[w.name][top] if w.name in self_l else None
     values["leakage"] = magnetic["leakage"]["l_h"][top] if "leakage" in magnetic else None
     return values
@@ -57,7 +60,9 @@ def _companion(case, frequency: float, density: float) -> Report:
 def error_estimate(report: Report, refinement: float = REFINEMENT) -> dict:
     """``error_estimate`` of results.json for ``report``: ``method``,
     ``frequency_hz``, ``densities`` and ``unknowns`` of the three meshes,
-    ``order_limit``, ``windings`` {name: {"rac": entry, "l": entry or None}}
+    ``order_limit``, ``windings`` {name: {"rac": entry, "loss": entry, "l":
+    entry or None}} (Rac and L None for a winding without current, whose
+    loss is its proximity loss)
     and ``leakage`` (entry or None); an entry is
     :meth:`~racfield.postprocess.error_estimate.Extrapolation.document`:
     the relative error of the reported value with its sign, the observed
@@ -81,7 +86,8 @@ def error_estimate(report: Report, refinement: float = REFINEMENT) -> dict:
 
     return {"method": "richardson", "frequency_hz": frequency, "densities": densities, "unknowns": unknowns,
             "order_limit": ORDER_LIMIT,
-            "windings": {w.name: {"rac": entry(f"rac:{w.name}", "ohm"), "l": entry(f"l:{w.name}", "h")}
+            "windings": {w.name: {"rac": entry(f"rac:{w.name}", "ohm"), "loss": entry(f"loss:{w.name}", "w"),
+                                  "l": entry(f"l:{w.name}", "h")}
                          for w in report.windings},
             "leakage": entry("leakage", "h")}
 
@@ -93,8 +99,11 @@ def error_estimate_lines(estimate: dict) -> list[str]:
     lines = [f"error estimate at {format_frequency(estimate['frequency_hz'])} (Richardson, densities "
              f"{densities}; {unknowns} unknowns; reported minus converged):"]
     for name, entries in estimate["windings"].items():
-        lines.append(f"  {name}: Rac {estimate_text(entries['rac'])}" +
-                     (f", L {estimate_text(entries['l'])}" if entries["l"] is not None else ""))
+        parts = [f"Rac {estimate_text(entries['rac'])}" if entries["rac"] is not None else
+                 f"loss {estimate_text(entries['loss'])}" if entries.get("loss") is not None else None,
+                 f"L {estimate_text(entries['l'])}" if entries["l"] is not None else None]
+        if any(parts):
+            lines.append(f"  {name}: " + ", ".join(p for p in parts if p))
     if estimate["leakage"] is not None:
         lines.append(f"  leakage inductance {estimate_text(estimate['leakage'])}")
     return lines

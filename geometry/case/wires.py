@@ -193,7 +193,7 @@ def parse_wire(text: object, key: str) -> tuple[WireSize, int | None]:
 
 def _grade(text: str, key: str) -> int:
     if text not in {str(g) for g in GRADES}:
-        raise CaseError(key, f'unknown grade "{text}"', "use grade 1, 2 or 3 (IEC 60317-0-1; 1 is the thinnest enamel)")
+        raise CaseError(key, f'unknown grade "{text}"', "use grade 1, 2 or 3 (IEC 60317-0-1, grade 1 the thinnest enamel)")
     return int(text)
 
 

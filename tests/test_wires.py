@@ -245,3 +245,18 @@ def test_racfield_wires_lists_the_tables(capsys):
     assert main(["wires"]) == 0
     out = capsys.readouterr().out
     assert "IEC 60317-0-1" in out and "ASTM B258" in out and "AWG 4/0" in out and "2.000 mm" in out
+
+
+def test_a_study_over_wire_sizes():
+    # [study] axes reach the wire key like any other: each point's Rdc is rho l N / A (IEC 60028)
+    text = CASE.replace("{CONDUCTOR}", '{ wire = "AWG 26" }') + (
+        '[study]\n[[study.axis]]\nkey = "layer[1].conductor.wire"\n'
+        'values = ["AWG 28", "AWG 26 grade 2", "0.45 mm grade 2", "0.5 mm grade 3"]\n')
+    points = racfield.variant_cases(racfield.load_case(text))
+    bare = [0.127e-3 * 92 ** (8 / 39), 0.127e-3 * 92 ** (10 / 39), 0.45e-3, 0.5e-3]   # ASTM B258; IEC nominal
+    assert len(points) == 4
+    for case, d in zip(points, bare):
+        conductors = place(case)
+        rdc = winding_dc_resistance(case, conductors, "primary", conductor_resistances(case, conductors))
+        assert rdc == pytest.approx(RHO_CU20 * 0.040 * 10 / (math.pi * d * d / 4), rel=1e-9)
+    assert points[3].layers[0].conductor.outer_width == pytest.approx(0.587e-3)   # IEC 60317-0-1, 0.500 grade 3

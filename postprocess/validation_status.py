@@ -434,6 +434,12 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         '0.05 %',
         'passes',
         applies_to=('all',)),
+    ValidationCheck(
+        'Standard wire sizes: AWG 4/0 to 56 bare diameters; IEC 60317-0-1 maximum overall diameters of grades 1 to 3 (86 values of 29 sizes) against transcriptions of its Table 1 other than the ones the table was typed from; nominal sizes against the R20/R40 series',
+        'ASTM B258 (d = 0.0050 in x 92^((36 - n)/39)) and published AWG tables (AWG 10 and 24 from memory); IEC 60317-0-1 Table 1 as reproduced by sh-wire.de, lpwindingwires.com and IS 13730-0-1; ISO 3 preferred numbers (from memory)',
+        '1e-9; exact',
+        '0 (AWG tables: within their printed rounding); 86 of 86 equal',
+        applies_to=('round',)),
 )
 
 

@@ -81,12 +81,20 @@ def _size(value) -> float:
     return float(number) * dict(UNITS["length"])[unit]
 
 
+#: wire = ... values of 0.05 to 1 mm bare (geometry/case/wires.py)
+WIRES = ["AWG 40", "AWG 30 grade 1", "AWG 26 grade 2", "AWG 20 grade 3", "AWG 18", "0.45 mm grade 2", "0.2 mm",
+         "0.100 mm grade 3", "1 mm grade 1", "0.071 mm"]
+
+
 @st.composite
 def conductor(draw, litz: tuple[int, str] | None = None):
     """A conductor table; ``litz`` (strands, representation): a litz wire of that kind."""
     shape = "litz" if litz else draw(st.sampled_from(["round", "round", "rectangular", "foil"]))
     c: dict = {"shape": shape}
-    if shape != "litz":
+    if shape == "round" and draw(st.integers(0, 3)) == 0:
+        # a standard size (geometry/case/wires.py), shape "round" given or implied
+        c = {"wire": draw(st.sampled_from(WIRES))} | ({"shape": shape} if draw(st.booleans()) else {})
+    elif shape != "litz":
         # (bare size, smallest and largest in mm, its size over insulation)
         sizes = {"round": [("diameter", 0.05, 1.0, "outer_diameter")],
                  "rectangular": [("width", 0.05, 1.0, "outer_width"), ("height", 0.05, 2.0, "outer_height")],
@@ -326,7 +334,7 @@ ODD_STRINGS = ["", " ", "mm", "1 mmm", "1e5 GHz", "1,5 mm", "1.5 \u00b5m", "1.5 
                "3 kg", "3", "-3 mm", "0 mm", "1e-30 m", "1e30 m", "-300 degC", "10 K", "-1 K", "1 rad",
                "10 us", "0 s", "-10 us", "1e300 s", "\n", "\r\n", "\u2028", "\x00", "\x7f", "ideal-core",
                "round", "primary", "../outside.csv", "/nonexistent/racfield.csv", "current.csv",
-               "__import__('os').getcwd()", "1 mm\n2 mm", "100 kHz", "1 MHz", "4 mm", "1" + "0" * 500]
+               "__import__('os').getcwd()", "AWG 26", "AWG 4/0", "0.45 mm grade 2", "AWG 99", "0.45 mm grade 9", "1 mm\n2 mm", "100 kHz", "1 MHz", "4 mm", "1" + "0" * 500]
 
 json_like = st.recursive(
     st.none() | st.booleans() | st.integers() | st.floats() | st.text(max_size=12),
@@ -336,7 +344,7 @@ odd_values = st.one_of(st.sampled_from(SPECIAL_NUMBERS), st.sampled_from(ODD_STR
                        st.text(max_size=30))
 odd_keys = st.one_of(st.text(max_size=12), st.sampled_from(
     ["widht", "hieght", "diametre", "turn", "frequency", "frequencies", "shape", "file", "layer", "winding",
-     "at", "name", "conductor", "variant", "period", "core", "gap", "thermal", "fill", "h", "", " ",
+     "at", "name", "conductor", "wire", "variant", "period", "core", "gap", "thermal", "fill", "h", "", " ",
      "\u2028", "a.b"]))
 
 

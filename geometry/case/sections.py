@@ -20,6 +20,7 @@ from .table import Table, list_of_tables, winding_ref
 from .units import LIMITS, in_range, quantity
 from .waveform import WaveformSettings, Waveform, fundamental_phasor, plan, sine_of, spectrum
 from .waveform_input import parse_settings, parse_waveform
+from .wires import DEFAULT_GRADE, grade_fix, parse_wire
 
 
 def read_model(table: Table) -> Model:
@@ -121,8 +122,11 @@ def _inner_radius(table: Table, model: Model, boundary: str) -> float | None:
 
 
 def read_conductor(table: Table) -> ConductorSpec:
-    shape = table.text("shape", None, SHAPES, required=True)
-    if shape == "round":
+    wire = table.has("wire")
+    shape = table.text("shape", "round" if wire else None, SHAPES, required=not wire)
+    if wire:
+        spec = read_wire(table, shape)
+    elif shape == "round":
         d = table.quantity("diameter", "length", required=True, positive=True)
         od = table.quantity("outer_diameter", "length", d, positive=True)
         if od < d:
@@ -150,6 +154,35 @@ def read_conductor(table: Table) -> ConductorSpec:
         spec = ConductorSpec(shape, t, h, ot, h)
     table.close()
     return spec
+
+
+def read_wire(table: Table, shape: str) -> ConductorSpec:
+    """A round conductor named by a standard size, ``wire = "AWG 26"`` or
+    ``"0.45 mm grade 2"`` (geometry/case/wires.py): diameter from the size,
+    outer_diameter from its grade (DEFAULT_GRADE when none is named) or, for
+    a wire named without a grade, from an explicit outer_diameter."""
+    key = table.key("wire")
+    if shape != "round":
+        raise CaseError(table.key("shape"), f'"{shape}" given together with wire (a round wire size)',
+                        'remove shape, or set shape = "round"')
+    if table.has("diameter"):
+        raise CaseError(table.key("diameter"), "given together with wire, which sets it",
+                        "give either wire (a standard size) or diameter and outer_diameter")
+    size, grade = parse_wire(table.raw("wire"), key)
+    if table.has("outer_diameter"):
+        if grade is not None:
+            raise CaseError(table.key("outer_diameter"), f"given together with a grade in wire ({size.name} "
+                            f"grade {grade})", "give either the grade or outer_diameter, not both")
+        od = table.quantity("outer_diameter", "length", required=True, positive=True)
+        if od < size.diameter * (1 - 1e-9):
+            raise CaseError(table.key("outer_diameter"), f"is smaller than the bare diameter of {size.name} "
+                            f"({size.diameter * 1e3:.4g} mm)", "give the diameter over the enamel")
+    else:
+        od = size.outer_diameter(grade or DEFAULT_GRADE)
+        if od is None:
+            raise CaseError(key, f"{size.name} has no grade {grade or DEFAULT_GRADE} in racfield's table"
+                            + (" (the grade named when none is given)" if grade is None else ""), grade_fix(size))
+    return ConductorSpec("round", size.diameter, size.diameter, od, od)
 
 
 def read_litz(table: Table) -> ConductorSpec:

@@ -1,6 +1,7 @@
 """The ``racfield`` command: ``run`` solves a case, ``check`` validates it,
 ``loss`` gives the winding losses at other currents from a results.json,
-``report`` writes report.html from a results folder.  A thin layer over the
+``report`` writes report.html from a results folder, ``wires`` lists the
+standard wire sizes.  A thin layer over the
 Python API (:mod:`racfield.api`): ``run`` is in :mod:`racfield.run_command`.
 
 Exit status: 0 done; 1 internal failure (a bug: please report it);
@@ -197,6 +198,39 @@ def command_report(args) -> int:
     return EXIT_OK
 
 
+def command_wires(args) -> int:
+    """``racfield wires``: the standard sizes a conductor's ``wire`` may name, with
+    bare diameter, area, maximum overall diameter per grade and Rdc per metre at 20 degC."""
+    from racfield.geometry.case.units import quantity
+    from racfield.geometry.case.wires import DEFAULT_GRADE, awg_sizes, iec_sizes
+    from racfield.geometry.materials import material
+
+    low = quantity(args.min, "length", "--min") if args.min else 0.0
+    high = quantity(args.max, "length", "--max") if args.max else float("inf")
+    metal = material("copper")
+    awg_title = ("AWG, ASTM B258 (bare diameter exact); overall diameters: the grade build of the "
+                 "IEC 60317-0-1 size named in the last column")
+    tables = {"awg": (awg_title, awg_sizes()),
+              "iec": ("IEC 60317-0-1, Table 1: maximum overall diameter of each grade", iec_sizes())}
+    for name in ("iec", "awg") if args.standard == "all" else (args.standard,):
+        title, sizes = tables[name]
+        print(title)
+        print(f"{'size':<10} {'bare mm':>8} {'area mm2':>10} {'grade 1':>8} {'grade 2':>8} {'grade 3':>8} "
+              f"{'Rdc ohm/m':>11}" + ("  build of" if name == "awg" else ""))
+        for size in sizes:
+            if not low * (1 - 1e-9) <= size.diameter <= high * (1 + 1e-9):
+                continue
+            grades = " ".join(f"{'-' if size.outer_diameter(g) is None else f'{size.outer_diameter(g) * 1e3:.4f}':>8}"
+                              for g in (1, 2, 3))
+            rdc = metal.resistivity(20.0) / size.area
+            print(f"{size.name:<10} {size.diameter * 1e3:>8.4f} {size.area * 1e6:>10.5g} {grades} "
+                  f"{rdc:>11.5g}" + (f"  {size.build_from or '-'}" if name == "awg" else ""))
+        print()
+    print(f'a conductor takes wire = "AWG 26", "0.45 mm grade 2" ...; without a grade, grade {DEFAULT_GRADE}; '
+          "Rdc: copper at 20 degC (IEC 60028)")
+    return EXIT_OK
+
+
 class _Version(argparse.Action):
     """``--version``: ``racfield X.Y.Z`` (the installed version, looked up only when asked)."""
 
@@ -250,6 +284,12 @@ def parser() -> argparse.ArgumentParser:
     report.add_argument("--out", help="HTML file to write (default: RESULTS_DIR/report.html)")
     report.add_argument("--force", action="store_true", help="write even over a file racfield did not write")
     report.set_defaults(handler=command_report)
+    wires = sub.add_parser("wires", help="list the standard wire sizes a conductor's wire = \"...\" may name")
+    wires.add_argument("--standard", choices=("all", "iec", "awg"), default="all",
+                       help="IEC 60317-0-1 metric sizes, AWG sizes or both (default)")
+    wires.add_argument("--min", metavar="LENGTH", help='smallest bare diameter to list, such as "0.2 mm"')
+    wires.add_argument("--max", metavar="LENGTH", help='largest bare diameter to list, such as "1 mm"')
+    wires.set_defaults(handler=command_wires)
     return top
 
 

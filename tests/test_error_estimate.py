@@ -43,7 +43,7 @@ D. The round wire without net current in a uniform transverse field, made
    J. Lammeraner and M. Stafl, "Eddy Currents", Iliffe, 1966), at
    a/delta = 1, 3 and 10: the wire's ``loss`` entry (it carries no current,
    so it has no Rac).  The walls mirror the wire's reaction field, an error
-   of the model (0.15 % at a 20 mm window) larger than the discretization
+   of the model (about 0.3 % at a 20 mm window) larger than the discretization
    error, so the truth here is the same window at density 4, as in C.
 
 The frequencies and the exact values use the IEC 60028 resistivity of
@@ -349,7 +349,7 @@ def test_estimate_of_a_proximity_loss(ratio):
     # mu0 I / side, the unbounded-field Bessel solution (Lammeraner and Stafl
     # 1966) within the walls' reflection of the wire's own field, which grows
     # as (a / side)^2 (common practice): measured -3.7 % at a/delta 3 in this
-    # 6 mm window (0.15 % at 20 mm in tests/test_validation_transverse_field.py)
+    # 6 mm window (about 0.3 % at 20 mm in tests/test_validation_transverse_field.py)
     b0 = 4e-7 * math.pi * 10.0 / 6e-3
     exact = transverse_case.bessel_loss(ratio, b0)   # the same 0.5 mm radius and frequency
     assert abs(loss / exact - 1.0) < 0.05

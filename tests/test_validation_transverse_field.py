@@ -23,7 +23,7 @@ core gives the uniform B0 = mu0 I / SIDE, along the foils.  The wire sits at
 the centre; the solver imposes its net current, zero.  Foils along the side
 walls give B0 along y, foils along the bottom and top walls B0 along x.  The
 walls and foils mirror the wire's own reaction field: a finite-window error
-that shrinks with SIDE (about 0.15 % at 20 mm, against the 1 % tolerance).
+that shrinks with SIDE (-0.25 % to -0.32 % at 20 mm for radius/skin depth 3 to 10, against the 1 % tolerance; the discretization error is a tenth of it, tests/test_error_estimate.py).
 
 racfield is driven here below the case level: geometry.mesher.build_mesh and
 fem.problem.WindowProblem.solve_windings with the foils' excitation column.

@@ -84,20 +84,17 @@ VALIDATION: tuple[ValidationCheck, ...] = (
         "Element sizes measured in the built mesh, region by region (round and foil conductor surfaces and interiors, window air, the bore and far arc of an open coil, gap and window corners, a core body's interior) at `[mesh] density` 1, 2, 4; `corner_refinement` 2 halves the gap corners and nothing else",
         'the size rules of Mesh sizes and the error estimate (common practice: the size field divided by the density)',
         'each ratio 2 within 20 %',
-        'ratios 1.86 to 2.18; corners 2.14, 2.22 (conductor surfaces unchanged)',
-        applies_to=('all',)),
+        'ratios 1.86 to 2.18; corners 2.14, 2.22 (conductor surfaces unchanged)', applies_to=('all',)),
     ValidationCheck(
         'Richardson extrapolation on synthetic sequences Q + C h^p (p = 2, 3, 4): the error and the order recovered; sign changes and growing differences flagged not asymptotic; an order above 4 capped',
         'L. F. Richardson, Phil. Trans. R. Soc. A, 1911; P. J. Roache, *Verification and Validation in Computational Science and Engineering*, 1998',
         '1e-9',
-        'exact',
-        applies_to=('all',)),
+        'exact', applies_to=('all',)),
     ValidationCheck(
         'Error estimate (`--check-mesh`) against the true error of exact solutions: round wire Rac at radius/skin depth 3 and 10 (and at density 0.3), Dowell 2 + 2 foils Rac at Delta = 3, one-turn loop L at R/a = 160; observed order; extrapolated value within the estimate of the exact one',
         'Ramo, Whinnery & Van Duzer (Bessel); Dowell 1966; Rosa & Grover 1912; expected order 4 for energy-type quantities of quadratic elements (G. Strang, G. J. Fix, *An Analysis of the Finite Element Method*, 1973)',
         'same sign, within a factor 2; order 3 to 5.5',
-        'estimate / true: +2.65e-4 / +2.54e-4, +2.23e-4 / +2.20e-4 (+5.20 % / +5.25 %), +3.90e-4 / +3.73e-4, -1.32e-4 / -1.31e-4; orders 4.45, 4.18, 4.65, 3.02',
-        applies_to=('all',)),
+        'estimate / true: +2.65e-4 / +2.54e-4, +2.23e-4 / +2.20e-4 (+5.20 % / +5.25 %), +3.90e-4 / +3.73e-4, -1.32e-4 / -1.31e-4; orders 4.45, 4.18, 4.65, 3.02', applies_to=('all',)),
     ValidationCheck(
         'Default mesh and error estimate against a reference at density 4 (every size a quarter): gapped-core choke at 500 kHz (Rac, L), open axisymmetric coil at 1 MHz (Rac, L), the proximity loss of a wire without current in a transverse field at radius/skin depth 1, 3, 10',
         'the same model 4 times finer everywhere (error 256 times smaller, O(h^4), Strang & Fix 1973); the transverse field set-up against Lammeraner & Stafl 1966',

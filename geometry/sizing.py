@@ -1,12 +1,9 @@
-"""Element sizes of the window mesh, and the bound on its size a case must
-respect before anything is meshed.
+"""Element sizes of the window mesh.
 
 The size at conductor surfaces follows the skin depth at the mesh frequency
 (``[mesh] frequency``, else the highest solved frequency), scaled by
-``[mesh] density``.  From it the number of element edges on the conductor
-surfaces follows without meshing; the whole mesh holds about 5 to 12
-elements per surface edge (measured on the cases in ``cases/``), so a bound on
-the surface edges bounds the work.
+``[mesh] density``.  From these sizes :mod:`racfield.geometry.forecast`
+forecasts the mesh, its memory and its time without meshing.
 """
 
 from __future__ import annotations
@@ -14,15 +11,10 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .case import Case, CaseError
+from .case import Case
 from .layout import Conductor
 from .materials import skin_depth
 from .resistance import conductor_resistivities
-
-#: the most element edges on conductor surfaces a case may ask for: about 1 to 2.5 million
-#: unknowns, near what a 24 GiB machine factorizes (768 round wires at 3 MHz: 48 000 edges,
-#: 1.04 million unknowns, 8 GB)
-MAX_SURFACE_EDGES = 100_000
 
 
 @dataclass(frozen=True)
@@ -83,17 +75,3 @@ def surface_edges(conductors: list[Conductor], sizing: MeshSizing) -> float:
     """Element edges on all conductor surfaces (perimeter over surface size)."""
     return sum((math.pi * c.width if c.shape == "round" else 2.0 * (c.width + c.height)) / surface_size(c, sizing)
                for c in conductors)
-
-
-def check_mesh_bound(case: Case, conductors: list[Conductor]) -> None:
-    """Refuse a case whose mesh would be far too large to solve (CaseError naming the keys that set it)."""
-    sizing = case_sizing(case, conductors)
-    edges = surface_edges(conductors, sizing)
-    if edges > MAX_SURFACE_EDGES:
-        source = ("mesh.frequency" if case.mesh.frequency is not None else
-                  "waveform.max_harmonic" if case.waveform is not None else
-                  "thermal.frequency" if case.mesh_frequency > max(case.frequencies) else "sweep")
-        raise CaseError(source, f"the mesh at {case.mesh_frequency:.4g} Hz (skin depth "
-                        f"{sizing.skin_depth * 1e6:.3g} um) would put about {edges:.3g} element "
-                        f"edges on the conductor surfaces, more than the {MAX_SURFACE_EDGES} this machine class can solve",
-                        "lower the highest frequency or set [mesh] frequency lower, or a [mesh] density below 1")

@@ -32,7 +32,7 @@ if TYPE_CHECKING:
 Progress = Callable[[int, int, float], None]
 
 
-def load_case(source: str | Path | dict, *, allow_outside_files: bool = False) -> Case:
+def load_case(source: str | Path | dict, *, allow_outside_files: bool = False, force_size: bool = False) -> Case:
     """The checked case, its conductor layout included.
 
     ``source`` is one of:
@@ -51,31 +51,37 @@ def load_case(source: str | Path | dict, *, allow_outside_files: bool = False) -
     one-line message is the one ``racfield check`` prints (after
     ``racfield: error: ``); for text or a dict it names no file.  The case's
     notes (remarks that are not errors) are in ``case.notes``.
+
+    A case whose forecast peak memory (:mod:`racfield.geometry.forecast`)
+    exceeds the memory available now is refused with a CaseError naming
+    ``[mesh] density`` and ``[mesh] frequency``; ``force_size`` skips that
+    check (``racfield run --force-size``).
     """
     if isinstance(source, dict):
-        return checked_layout(parse_case(source, "", allow_outside_files))
+        return checked_layout(parse_case(source, "", allow_outside_files), force_size)
     if isinstance(source, str) and ("\n" in source or "\r" in source or "=" in source):
-        return checked_layout(parse_case(parse_toml(source), "", allow_outside_files))
+        return checked_layout(parse_case(parse_toml(source), "", allow_outside_files), force_size)
     if isinstance(source, (str, Path)):
-        return load_case_file(source, allow_outside_files=allow_outside_files)
+        return load_case_file(source, allow_outside_files=allow_outside_files, force_size=force_size)
     raise TypeError(f"load_case takes a path, case-file text or a dict, not {source.__class__.__name__}")
 
 
-def load_case_file(path: str | Path, *, allow_outside_files: bool = False) -> Case:
+def load_case_file(path: str | Path, *, allow_outside_files: bool = False, force_size: bool = False) -> Case:
     """:func:`load_case` of the case file at ``path``, whatever its name holds
     (errors name the file as given: ``racfield run`` and ``check`` read this way)."""
-    return _load_file(path, allow_outside_files=allow_outside_files)
+    return _load_file(path, allow_outside_files=allow_outside_files, force_size=force_size)
 
 
-def variant_cases(case: Case) -> list[Case]:
+def variant_cases(case: Case, *, force_size: bool = False) -> list[Case]:
     """Every arrangement of ``case``, each a case of its own to :func:`solve`:
     the case itself when it has neither ``[[variant]]`` tables nor a
     ``[study]``; otherwise the base arrangement (if the case has layers or
     conductors of its own) and each variant, or each study point (in the
-    order of the study; a point whose case is bad raises its CaseError).
-    Each arrangement's name is its ``variant`` attribute."""
+    order of the study; a point whose case is bad raises its CaseError, as a
+    point too large for the memory does unless ``force_size``).  Each
+    arrangement's name is its ``variant`` attribute."""
     if case.study:
-        return [study_case(case, point) for point in case.study]
+        return [study_case(case, point, force_size) for point in case.study]
     return _arrangements(case)
 
 

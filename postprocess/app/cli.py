@@ -26,11 +26,12 @@ if TYPE_CHECKING:
 EXIT_OK, EXIT_FAILURE, EXIT_BAD_INPUT, EXIT_PARTIAL = 0, 1, 2, 3
 
 
-def _load(path: str, allow_outside_files: bool = False) -> "Case":
-    """The case, with its notes (remarks that are not errors) on stderr."""
+def _load(path: str, allow_outside_files: bool = False, force_size: bool = False) -> "Case":
+    """The case, with its notes (remarks that are not errors) on stderr; one
+    too large for the memory is refused unless ``force_size``."""
     from .api import load_case_file
 
-    case = load_case_file(path, allow_outside_files=allow_outside_files)
+    case = load_case_file(path, allow_outside_files=allow_outside_files, force_size=force_size)
     for note in case.notes:
         print(f"racfield: note: {note}", file=sys.stderr)
     return case
@@ -39,12 +40,13 @@ def _load(path: str, allow_outside_files: bool = False) -> "Case":
 def command_run(args) -> int:
     from .run_command import command_run as run
 
-    return run(args, _load(args.case, args.allow_outside_files))
+    return run(args, _load(args.case, args.allow_outside_files, args.force_size))
 
 
 def _check_text(case: "Case") -> str:
     from racfield.geometry.case import winding_turns
     from racfield.geometry.case.units import format_frequency
+    from racfield.geometry.forecast import forecast
     from racfield.geometry.layout import place
     from racfield.geometry.materials import material, skin_depth
     from racfield.geometry.resistance import conductor_resistances, winding_dc_resistance
@@ -73,6 +75,7 @@ def _check_text(case: "Case") -> str:
                      f"{d.insulation_permittivity:g}{extra}, layer insulation {d.layer_insulation_permittivity:g}; "
                      f"core {d.core}; start terminals: "
                      + ", ".join(f"{w.name} {w.start}" for w in case.windings))
+    lines.append(forecast(case, conductors).line())
     copper = sum(c.copper_area for c in conductors)
     lines.append(f"fill: {copper / (win.width * win.height) * 100:.1f} % of the window area is conductor")
     lines.append(f"{'winding':<14} {'turns':>5} {'layers':>6} {'material':<10} {'current':>10} {'Rdc':>12}")
@@ -118,9 +121,9 @@ def _thermal_line(case: "Case") -> str:
 def command_check(args) -> int:
     from .execution import arrangements
 
-    case = _load(args.case, args.allow_outside_files)
+    case = _load(args.case, args.allow_outside_files, args.force_size)
     failed = []
-    for key, name, arrangement, error in arrangements(case):
+    for key, name, arrangement, error in arrangements(case, args.force_size):
         if name:
             print(f"== variant {name}")
         if arrangement is None:
@@ -268,11 +271,15 @@ def parser() -> argparse.ArgumentParser:
     run.add_argument("--check-mesh", action="store_true",
                      help="solve the highest frequency again on meshes with element sizes over sqrt(2) and 2, "
                           "and report the estimated discretization error of each winding's Rac and L")
+    run.add_argument("--force-size", action="store_true",
+                     help="run even a case whose forecast peak memory exceeds the memory available")
     run.set_defaults(handler=command_run)
     check = sub.add_parser("check", help="validate a case and print turns, fill, Rdc and skin depths")
     check.add_argument("case", help="case file (TOML)")
     check.add_argument("--allow-outside-files", action="store_true",
                        help="read files the case names also outside the case file's folder")
+    check.add_argument("--force-size", action="store_true",
+                       help="print the forecast even of a case too large for the memory available")
     check.set_defaults(handler=command_check)
     loss = sub.add_parser("loss", help="winding losses at other currents, from a results.json without a new solve")
     loss.add_argument("results", help="results.json, or the results folder")

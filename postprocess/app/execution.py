@@ -31,15 +31,16 @@ if TYPE_CHECKING:   # the solver is imported by the functions that solve
     from racfield.postprocess.report import Report
 
 
-def arrangements(case: Case) -> list[tuple[str, str | None, Case | None, str | None]]:
+def arrangements(case: Case, force_size: bool = False) -> list[tuple[str, str | None, Case | None, str | None]]:
     """(folder key, name, case or None, error line) of every arrangement: the
     case alone, its [[variant]] arrangements, or its [study] points (a bad
-    point is kept with its error, to fail alone)."""
+    point, or one too large for the memory unless ``force_size``, is kept with
+    its error, to fail alone)."""
     if case.study:
         out = []
         for point in case.study:
             try:
-                out.append((folder_name(point.name), point.name, study_case(case, point), None))
+                out.append((folder_name(point.name), point.name, study_case(case, point, force_size), None))
             except CaseError as error:
                 out.append((folder_name(point.name), point.name, None, error.line()))
         return out

@@ -191,7 +191,7 @@ def _results_folder(args) -> Path:
 def command_run(args, case: Case) -> int:
     """``racfield run`` of the loaded ``case``: exit status."""
     out = _results_folder(args)
-    listed = arrangements(case)
+    listed = arrangements(case, getattr(args, "force_size", False))
     several = len(listed) > 1 or bool(case.study)
     folders = {key: out / key if key else out for key, _, _, _ in listed}
     names = {key: name for key, name, _, _ in listed}

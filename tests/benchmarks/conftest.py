@@ -1,3 +1,3 @@
 """The benchmark folder holds a script, not tests."""
 
-collect_ignore = ["run_benchmark.py", "run_study_benchmark.py"]
+collect_ignore = ["run_benchmark.py", "run_study_benchmark.py", "run_scaling.py"]

@@ -23,7 +23,7 @@ zero, huge, NaN or infinite number, an odd unit string or random text).  The
 text property renders such documents as TOML and mutates the text (cuts,
 inserted TOML punctuation, random characters and bytes).
 
-Examples: 500 + 900 + 400 + 400 + 150 = 2350 in the five property tests of
+Examples: 250 + 450 + 200 + 200 + 100 = 1200 in the five property tests of
 the normal run (plus 100 grammar documents that must hold valid cases), with
 ``derandomize=True`` (the same examples on every run, so CI is reproducible)
 and no example database.  Set the environment variable
@@ -56,7 +56,7 @@ from racfield.geometry.case.errors import CaseError
 from racfield.geometry.layout import place
 from racfield.cli import main
 
-DEFAULT_EXAMPLES = {"valid": 500, "mutated": 900, "text": 400, "text-mutated": 400, "bytes": 150}
+DEFAULT_EXAMPLES = {"valid": 250, "mutated": 450, "text": 200, "text-mutated": 200, "bytes": 100}
 
 
 def examples(name: str) -> int:

@@ -266,7 +266,8 @@ class WindowProblem:
         """An empty reduced model of this window (solid conductors only)."""
         if self.stranded.any():
             raise ValueError("litz bundles make K frequency dependent: no reduced model")
-        return ReducedModel(self.stiffness, self.mass, self.coupling, self.conductance, self.scale)
+        return ReducedModel(self.stiffness, self.mass, self.coupling, self.conductance, self.scale,
+                            self.reduced_loss_factors)
 
     def loss_matrices(self, frequency: float, voltages: np.ndarray, potentials: np.ndarray) -> np.ndarray:
         """Loss cross terms of ``Ne`` excitations: ``voltages`` (Nc, Ne) V/m and
@@ -297,6 +298,40 @@ class WindowProblem:
             out[:, column] = (np.bincount(self.loss_conductor, flat[:, column].real, self.conductor_count)
                               + 1j * np.bincount(self.loss_conductor, flat[:, column].imag, self.conductor_count))
         return out.reshape(self.conductor_count, count, count)
+
+    def reduced_loss_factors(self, basis: np.ndarray) -> np.ndarray:
+        """Loss factors of a reduced basis V (free nodes, r), once per basis:
+        R (Nc, r + 1, r + 1) real, such that a field e = u w - j omega V y in
+        conductor k (u its voltage V/m, y (r,) the reduced coordinates) loses
+        |R_k [u, -j omega y]|^2 W/m (W axisymmetric), the integral of
+        sigma |e|^2 (the upper triangle of the QR of the quadrature-weighted
+        columns [w, V] at the conductor's quadrature points).  A reduced
+        frequency point then costs O(Nc r^2) per excitation and no
+        integration; e is formed as a combination at the points, as in
+        :meth:`loss_matrices`, not expanded into u^2 and A^2 terms."""
+        weight = self.loss_sigma * self.loss_basis.dx
+        if self.radius_offset is not None:
+            weight = weight * (2.0 * np.pi * (np.asarray(self.loss_basis.global_coordinates())[0]
+                                              + self.radius_offset))
+        root = np.sqrt(weight).ravel()
+        voltage = (np.sqrt(weight) * self.loss_voltage_weight).ravel()
+        nqp = self.loss_sigma.shape[1]
+        point_conductor = np.repeat(self.loss_conductor, nqp)
+        order = np.argsort(point_conductor, kind="stable")
+        bounds = np.searchsorted(point_conductor[order], np.arange(self.conductor_count + 1))
+        interpolation = self.loss_interpolation[:, self.free].tocsr()
+        r = basis.shape[1]
+        out = np.zeros((self.conductor_count, r + 1, r + 1))
+        for k in range(self.conductor_count):
+            rows = order[bounds[k]:bounds[k + 1]]
+            if rows.size == 0:
+                continue
+            columns = np.empty((rows.size, r + 1))
+            columns[:, 0] = voltage[rows]
+            columns[:, 1:] = root[rows, None] * (interpolation[rows] @ basis)
+            factor = np.linalg.qr(columns, mode="r")
+            out[k, :factor.shape[0]] = factor
+        return out
 
     def loss_density(self, frequency: float, voltages: np.ndarray, potential: np.ndarray) -> np.ndarray:
         """Time-averaged ohmic loss density sigma |e|^2 in W/m^3 at the quadrature
@@ -333,8 +368,16 @@ class WindowProblem:
             g_inv = 1.0 / self.conductance
             inductance = (g_inv[:, None] * response.flux_coupling.real) * g_inv[None, :]
         unit_potentials = np.zeros((self.basis.N, connection.shape[1]), dtype=complex)
-        unit_voltages, unit_potentials[self.free] = response.field(connection)
-        q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
+        reduced_loss = getattr(response, "loss_matrices", None)
+        if reduced_loss is not None:
+            # a reduced point: the loss from the reduced factors, the field only when kept
+            unit_voltages = response.voltages(connection)
+            q = reduced_loss(unit_voltages)
+            if keep_field:
+                unit_potentials[self.free] = response.potential(unit_voltages)
+        else:
+            unit_voltages, unit_potentials[self.free] = response.field(connection)
+            q = self.loss_matrices(frequency, unit_voltages, unit_potentials)
         if callable(winding_currents):
             winding_currents = winding_currents(connection.T @ impedance @ connection)
         i = np.asarray(winding_currents, dtype=complex)

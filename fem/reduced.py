@@ -24,6 +24,8 @@ to the projection error, not for arbitrary conductor currents.
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 import numpy as np
 import scipy.linalg
 import scipy.sparse as sp
@@ -35,13 +37,27 @@ class ReducedResponse:
     """A reduced response with the interface of :class:`fem.harmonic.Response`:
     ``admittance`` (Nc, Nc) S*m and the potentials V x u (Wb/m)."""
 
-    def __init__(self, omega: float, admittance: np.ndarray, basis: np.ndarray, reduced: np.ndarray) -> None:
+    def __init__(self, omega: float, admittance: np.ndarray, basis: np.ndarray, reduced: np.ndarray,
+                 loss_factors: Callable[[], np.ndarray | None] | None = None) -> None:
         self.omega = omega
         self.admittance = admittance
         self.flux_coupling = None
         self.residual = None    #: no full solve behind a reduced response
         self._basis = basis
         self._reduced = reduced
+        self._loss_factors = loss_factors
+        if loss_factors is None:
+            self.loss_matrices = None
+
+    def loss_matrices(self, voltages: np.ndarray) -> np.ndarray:
+        """Loss cross terms Q (Nc, Ne, Ne) W/m of ``voltages`` (Nc, Ne) V/m and
+        their reduced potentials, as :meth:`fem.problem.WindowProblem.loss_matrices`,
+        from the model's loss factors R: Q_k = g_k^H g_k, g_k = R_k [u_k; -j w y]."""
+        factors = self._loss_factors()
+        u = np.asarray(voltages, dtype=complex)
+        y = self._reduced @ u                                                    # (r, Ne)
+        g = factors[:, :, :1] * u[:, None, :] + (-1j * self.omega) * np.einsum("kmr,rn->kmn", factors[:, :, 1:], y)
+        return np.einsum("kmi,kmj->kij", g.conj(), g)
 
     def voltages(self, currents: np.ndarray) -> np.ndarray:
         """Conductor voltages per metre (V/m) that carry ``currents`` (A)."""
@@ -90,8 +106,13 @@ class ReducedModel:
     orthonormal basis V of the potentials (see the module docstring)."""
 
     def __init__(self, stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spmatrix,
-                 conductance: np.ndarray, scale: float) -> None:
-        """``scale``: s of :func:`fem.harmonic.stiffness_scale`."""
+                 conductance: np.ndarray, scale: float,
+                 loss_factors: Callable[[np.ndarray], np.ndarray] | None = None) -> None:
+        """``scale``: s of :func:`fem.harmonic.stiffness_scale`; ``loss_factors``:
+        the loss factors of a basis (see
+        :meth:`fem.problem.WindowProblem.reduced_loss_factors`), computed once
+        per basis when a reduced point first asks for its loss."""
+        self.loss_factors = loss_factors
         self.scale = scale
         self.stiffness = (self.scale * stiffness).tocsc()
         self.mass = (self.scale * mass).tocsc()
@@ -149,9 +170,17 @@ class ReducedEvaluator:
         self.b_r = model.b_r
         self.eig, self.q = scipy.linalg.eigh(model.m_r, model.k_r)
         self.qtb = self.q.T @ (model.scale * self.b_r)
+        self._loss: np.ndarray | None = None
+
+    def loss_factors(self) -> np.ndarray:
+        """The model's loss factors of this basis (computed on first use)."""
+        if self._loss is None:
+            self._loss = self.model.loss_factors(self.basis)
+        return self._loss
 
     def respond(self, omega: float) -> ReducedResponse:
         """Y = G - j w B^T V x with (V^T K V + j w V^T M V) x = V^T B."""
         x = self.q @ (self.qtb / (1.0 + 1j * omega * self.eig)[:, None])
         admittance = np.diag(self.model.conductance).astype(complex) - 1j * omega * (self.b_r.T @ x)
-        return ReducedResponse(omega, admittance, self.basis, x)
+        return ReducedResponse(omega, admittance, self.basis, x,
+                               self.loss_factors if self.model.loss_factors is not None else None)

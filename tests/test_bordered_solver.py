@@ -135,3 +135,36 @@ def test_reduced_model_is_exact_at_its_expansion_frequency():
         error = np.abs(reduced - full).max() / np.abs(full.real).max()
         print(f"\nreduced vs full at {f:g} Hz: {error:.1e}")
         assert error < tolerance  # Galerkin projection property (Bai 2002); full solve as reference
+
+
+@pytest.mark.parametrize("boundary", ["open", "ideal-core"])
+def test_reduced_loss_factors_give_the_integrated_loss(boundary):
+    """A reduced point's loss matrices come from the precomputed factors R_k
+    (no integration per frequency).  They must equal the quadrature integral
+    of sigma |u w - j w A|^2 over the same reduced field (identity of the QR,
+    to rounding).  At the expansion frequency they must also equal the full
+    solve's loss matrices: the Galerkin projection whose basis holds the exact
+    solution reproduces it (Z. Bai, Applied Numerical Mathematics, 2002; the
+    full solve is the reference)."""
+    case, conductors, problem = _problem(boundary)
+    connection = excitation_basis(case, conductors).basis
+    model = problem.reduced_model()
+    model.extend(moment_vectors(problem.factorize(FREQUENCY), problem.mass, problem.coupling, connection, 4))
+    for f in (FREQUENCY, 0.4 * FREQUENCY):
+        response = model.respond(2.0 * np.pi * f)
+        assert response.loss_matrices is not None
+        voltages = response.voltages(connection)
+        potentials = np.zeros((problem.basis.N, connection.shape[1]), dtype=complex)
+        potentials[problem.free] = response.potential(voltages)
+        integrated = problem.loss_matrices(f, voltages, potentials)
+        factored = response.loss_matrices(voltages)
+        scale = np.abs(integrated).max()
+        error = np.abs(factored - integrated).max() / scale
+        print(f"\nreduced loss factors vs integration at {f:g} Hz: {error:.1e}")
+        assert error < 1e-10  # the same integral, rearranged (QR identity)
+    full = problem.solve_windings(FREQUENCY, connection, np.ones(connection.shape[1]))
+    reduced = problem.solve_windings(FREQUENCY, connection, np.ones(connection.shape[1]),
+                                     response=model.respond(2.0 * np.pi * FREQUENCY))
+    error = np.abs(reduced.loss_matrix_per_m - full.loss_matrix_per_m).max() / np.abs(full.loss_matrix_per_m).max()
+    print(f"reduced vs full loss matrices at the expansion frequency: {error:.1e}")
+    assert error < 1e-8  # Galerkin exactness at the expansion point (Bai 2002)

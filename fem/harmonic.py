@@ -27,19 +27,115 @@ from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
+import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 from threadpoolctl import threadpool_limits
 
+from racfield.geometry.machine import mumps_module, sparse_solver
 
-def _factorize(matrix: sp.spmatrix):
-    """SuperLU of ``matrix`` (already in its fill-reducing order), no pivoting
-    (the matrix is complex symmetric with definite real and imaginary parts)."""
-    # the sparse LU calls BLAS on small dense blocks: extra BLAS threads only
-    # contend (and slow it down many times on a busy machine)
-    with threadpool_limits(limits=1, user_api="blas"):
-        return spla.splu(matrix.tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0, relax=5,
-                         panel_size=12, options={"SymmetricMode": True})
+
+class SuperLUFactors:
+    """SuperLU of a matrix already in its fill-reducing order, no pivoting (the
+    matrix is complex symmetric with definite real and imaginary parts); the
+    Schur complement over its last ``tail`` unknowns is read from the trailing
+    block of the factors."""
+
+    name = "superlu"
+
+    def __init__(self, matrix: sp.spmatrix, tail: int = 0) -> None:
+        # the sparse LU calls BLAS on small dense blocks: extra BLAS threads only
+        # contend (and slow it down many times on a busy machine)
+        with threadpool_limits(limits=1, user_api="blas"):
+            self.lu = spla.splu(matrix.tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0, relax=5,
+                                panel_size=12, options={"SymmetricMode": True})
+        self.n = matrix.shape[0] - tail
+
+    def solve(self, rhs: np.ndarray) -> np.ndarray:
+        with threadpool_limits(limits=1, user_api="blas"):
+            return self.lu.solve(np.ascontiguousarray(rhs))
+
+    def schur(self) -> np.ndarray | None:
+        """The Schur complement over the tail (None: see :func:`trailing_schur`)."""
+        return trailing_schur(self.lu, self.n)
+
+
+class MumpsFactors:
+    """MUMPS's LDL^T (SYM = 2: complex symmetric) of a matrix in racfield's
+    fill-reducing order (given to MUMPS, ICNTL(7) = 1), with the Schur
+    complement over its last ``tail`` unknowns returned by MUMPS itself
+    (ICNTL(19) = 3, centralized): no U factor is formed to read it.  A solve
+    condenses the right-hand side onto the tail, solves the small dense Schur
+    system and expands (ICNTL(26) = 1, 2).  P. R. Amestoy, I. S. Duff,
+    J.-Y. L'Excellent, J. Koster, "A fully asynchronous multifrontal solver
+    using distributed dynamic scheduling", SIAM J. Matrix Anal. Appl., 2001."""
+
+    name = "mumps"
+
+    def __init__(self, matrix: sp.spmatrix, tail: int = 0) -> None:
+        mumpspy = mumps_module()
+        from mumpspy.mumps_lib_c_struc import PMumpsInt
+
+        size = matrix.shape[0]
+        self.n, self.tail = size - tail, tail
+        self.mumps = mumps = mumpspy.MumpsSolver(is_sym=True, system="complex")
+        mumps.set_mtx(sp.coo_matrix(matrix), factorize=False)
+        struct = mumps.struct
+        self._given = np.arange(1, size + 1, dtype=np.int32)   # kept alive while MUMPS holds them
+        struct.perm_in = self._given.ctypes.data_as(PMumpsInt)
+        struct.icntl[6] = 1
+        self._schur = None
+        if tail:
+            self._tail = np.arange(self.n + 1, size + 1, dtype=np.int32)
+            self._schur = np.zeros((tail, tail), dtype=complex)
+            struct.size_schur = tail
+            struct.listvar_schur = self._tail.ctypes.data_as(PMumpsInt)
+            struct.schur = self._schur.ctypes.data_as(mumps.pointermumpstype)
+            struct.schur_lld = tail
+            struct.nprow = struct.npcol = 1
+            struct.mblock = struct.nblock = 100
+            struct.icntl[18] = 3
+        mumps._mumps_call(4)   # analysis (in the given order) and numeric factorization
+        if tail:
+            # a complex symmetric Schur complement: its storage order does not matter
+            self._schur_lu = scipy.linalg.lu_factor(self._schur)
+
+    def solve(self, rhs: np.ndarray) -> np.ndarray:
+        mumps, struct = self.mumps, self.mumps.struct
+        b = np.array(rhs, dtype=complex, order="F", copy=True)
+        flat = b.ndim == 1
+        b = b.reshape(b.shape[0], -1, order="F")
+        mumps.set_rhs(b)
+        if not self.tail:
+            struct.icntl[25] = 0
+            mumps._mumps_call(3)
+        else:
+            reduced = np.zeros((self.tail, b.shape[1]), dtype=complex, order="F")
+            struct.lredrhs = self.tail
+            struct.redrhs = reduced.ctypes.data_as(mumps.pointermumpstype)
+            struct.icntl[25] = 1
+            mumps._mumps_call(3)
+            reduced[:] = scipy.linalg.lu_solve(self._schur_lu, reduced)
+            struct.icntl[25] = 2
+            mumps._mumps_call(3)
+        out = np.array(mumps._data["rhs"], copy=True)
+        return out[:, 0] if flat else out
+
+    def schur(self) -> np.ndarray | None:
+        return None if self._schur is None else self._schur.copy()
+
+
+def _factorize(matrix: sp.spmatrix, tail: int = 0):
+    """The factors of ``matrix`` (already in its fill-reducing order; its last
+    ``tail`` unknowns the conductor ones): MUMPS where it loads (see
+    :func:`racfield.geometry.machine.sparse_solver`: on large matrices), else
+    SuperLU, which also serves when MUMPS fails on the matrix."""
+    if sparse_solver(matrix.shape[0]) == "mumps":
+        try:
+            return MumpsFactors(matrix, tail)
+        except RuntimeError:  # MUMPS's error status (e.g. its workspace): SuperLU instead
+            pass
+    return SuperLUFactors(matrix, tail)
 
 
 def trailing_schur(lu, n: int) -> np.ndarray | None:
@@ -137,7 +233,7 @@ class BorderedSystem:
             data = data + self.per_inverse_omega / (1j * omega)
         size = self.n + self.nc
         matrix = sp.csc_matrix((data, self.indices, self.indptr), shape=(size, size))
-        return BorderedFactorization(self, omega, _factorize(matrix), matrix)
+        return BorderedFactorization(self, omega, _factorize(matrix, self.nc), matrix)
 
 
 class BorderedFactorization:
@@ -160,7 +256,7 @@ class BorderedFactorization:
     def schur(self) -> np.ndarray:
         """Sigma from the trailing block of the factors (no solves)."""
         n, nc = self.n, self.nc
-        block = trailing_schur(self.lu, n)
+        block = self.lu.schur()
         if block is not None:
             return block
         # general case: Sigma^-1 from nc solves
@@ -169,8 +265,7 @@ class BorderedFactorization:
         return np.linalg.inv(self._raw_solve(rhs)[n:])
 
     def _raw_solve(self, rhs: np.ndarray) -> np.ndarray:
-        with threadpool_limits(limits=1, user_api="blas"):
-            z = self.lu.solve(np.ascontiguousarray(rhs[self.order]))
+        z = self.lu.solve(rhs[self.order])
         out = np.empty_like(z)
         out[self.order] = z
         return out
@@ -293,9 +388,8 @@ def respond_stranded(stiffness: sp.spmatrix, mass: sp.spmatrix, coupling: sp.spm
     order = np.arange(system.shape[0]) if ordering is None else ordering
     lu = _factorize(system[order][:, order])
     rhs = scale * coupling.toarray().astype(complex)
-    with threadpool_limits(limits=1, user_api="blas"):
-        x = np.empty((system.shape[0], coupling.shape[1]), dtype=complex)
-        x[order] = lu.solve(rhs[order])
+    x = np.empty((system.shape[0], coupling.shape[1]), dtype=complex)
+    x[order] = lu.solve(rhs[order])
     residual = backward_error(system, x, rhs)
     c = coupling.T.tocsr() @ x
     s = np.nonzero(~stranded)[0]

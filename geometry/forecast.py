@@ -27,6 +27,7 @@ import numpy as np
 
 from .case import Case, CaseError
 from .layout import Conductor
+from .machine import sparse_solver
 from .sizing import (
     MeshSizing,
     base_surface_size,
@@ -42,18 +43,22 @@ from .sizing import (
 #: graded rings add); fitted, see SizeForecast
 NODES_PER_AREA = np.array([2.06, 5.46, 12.7])
 NODES_PER_SURFACE_EDGE = 6.2
-#: peak memory law, bytes: MEMORY_BASE + MEMORY_PER_UNKNOWN * n * log2(n); fitted, see SizeForecast
+#: peak memory law, bytes: MEMORY_BASE + MEMORY_PER_UNKNOWN[solver] * n * log2(n); fitted, see SizeForecast
 MEMORY_BASE = 300e6
-MEMORY_PER_UNKNOWN = 300.0
-#: wall time law, s: TIME_BASE + TIME_PER_UNKNOWN * n + factorizations * TIME_PER_FACTOR * n^1.5
+MEMORY_PER_UNKNOWN = {"superlu": 300.0, "mumps": 195.0}
+#: wall time law, s: TIME_BASE + TIME_PER_UNKNOWN * n + factorizations * TIME_PER_FACTOR[solver] * n^1.5
 TIME_BASE = 2.0
 TIME_PER_UNKNOWN = 2e-5
-TIME_PER_FACTOR = 2e-8
+TIME_PER_FACTOR = {"superlu": 2e-8, "mumps": 6e-9}
 #: factorizations of a reduced sweep: expansion points (typically 3 to 6) and 2 check points
 REDUCED_FACTORIZATIONS = 7
 #: grid points of the quadrature over the window (and core), and over the open air around it
 WINDOW_POINTS = 200_000
 OUTER_POINTS = 40_000
+
+
+#: how ``racfield check`` names each sparse solver
+SOLVER_NAMES = {"mumps": "MUMPS LDL^T", "superlu": "SuperLU"}
 
 
 @dataclass(frozen=True)
@@ -72,11 +77,18 @@ class SizeForecast:
 
     ``peak_memory_bytes``: the largest resident memory of the run (bytes),
     ``MEMORY_BASE + MEMORY_PER_UNKNOWN * n * log2(n)`` for n unknowns: the
-    sparse LU of nested-dissection order holds O(n log n) entries.
+    sparse LU of nested-dissection order holds O(n log n) entries.  Both this
+    and the time depend on the sparse solver that runs here
+    (:func:`racfield.geometry.machine.sparse_solver`): MUMPS's LDL^T keeps
+    one triangle and no copy of U, about 0.65 times SuperLU's memory per
+    unknown and a third of its time per factorization (fitted on the 48-,
+    192- and 768-conductor grids, 4 December 2026).
 
     ``time_s``: the wall time of the run (s), ``TIME_BASE + TIME_PER_UNKNOWN * n
     + factorizations * TIME_PER_FACTOR * n^1.5``: meshing, assembly and writing
     grow about as n, each sparse LU of a 2-D mesh about as n^1.5.
+
+    ``solver``: the sparse solver of the forecast, ``"mumps"`` or ``"superlu"``.
 
     ``factorizations``: sparse LUs the sweep is expected to take (one per
     frequency point by point; expansion and check points of a reduced sweep).
@@ -91,12 +103,13 @@ class SizeForecast:
     peak_memory_bytes: float
     time_s: float
     factorizations: int
+    solver: str = "superlu"
 
     def line(self) -> str:
         """One line for ``racfield check``."""
         return (f"forecast: about {self.unknowns:,} unknowns, peak memory about "
                 f"{self.peak_memory_bytes / 1e9:.2g} GB, about {self.time_s:.2g} s "
-                f"({self.factorizations} sparse factorizations)")
+                f"({self.factorizations} sparse factorizations, {SOLVER_NAMES[self.solver]})")
 
 
 @dataclass(frozen=True)
@@ -300,15 +313,18 @@ def forecast_unknowns(case: Case, conductors: list[Conductor]) -> int:
     return round(total)
 
 
-def peak_memory(unknowns: int) -> float:
-    """The peak resident memory (bytes) of a run of ``unknowns`` unknowns."""
+def peak_memory(unknowns: int, solver: str | None = None) -> float:
+    """The peak resident memory (bytes) of a run of ``unknowns`` unknowns with
+    ``solver`` (default: the one that runs here, see :mod:`racfield.geometry.machine`)."""
     n = max(unknowns, 2)
-    return MEMORY_BASE + MEMORY_PER_UNKNOWN * n * math.log2(n)
+    return MEMORY_BASE + MEMORY_PER_UNKNOWN[solver or sparse_solver(unknowns)] * n * math.log2(n)
 
 
-def wall_time(unknowns: int, factorizations: int) -> float:
-    """The wall time (s) of a run of ``unknowns`` unknowns and ``factorizations`` sparse LUs."""
-    return TIME_BASE + TIME_PER_UNKNOWN * unknowns + factorizations * TIME_PER_FACTOR * unknowns ** 1.5
+def wall_time(unknowns: int, factorizations: int, solver: str | None = None) -> float:
+    """The wall time (s) of a run of ``unknowns`` unknowns and ``factorizations``
+    sparse factorizations with ``solver`` (default: the one that runs here)."""
+    return (TIME_BASE + TIME_PER_UNKNOWN * unknowns
+            + factorizations * TIME_PER_FACTOR[solver or sparse_solver(unknowns)] * unknowns ** 1.5)
 
 
 def _factorizations(case: Case, conductors: list[Conductor]) -> int:
@@ -323,7 +339,9 @@ def forecast(case: Case, conductors: list[Conductor]) -> SizeForecast:
     """The :class:`SizeForecast` of one arrangement ``case`` with its placed ``conductors``."""
     unknowns = forecast_unknowns(case, conductors)
     factorizations = _factorizations(case, conductors)
-    return SizeForecast(unknowns, peak_memory(unknowns), wall_time(unknowns, factorizations), factorizations)
+    solver = sparse_solver(unknowns)
+    return SizeForecast(unknowns, peak_memory(unknowns, solver), wall_time(unknowns, factorizations, solver),
+                        factorizations, solver)
 
 
 def available_memory() -> float:

@@ -13,6 +13,7 @@ from functools import cached_property
 
 import numpy as np
 
+from racfield.geometry.machine import sparse_solver
 from racfield.fem.sweep import SweepResult
 from racfield.geometry.case import Case
 
@@ -186,6 +187,7 @@ def results_document(report: Report, solved_of: int | None = None) -> dict:
         "mesh": {"unknowns": sweep.unknowns, "elements": sweep.elements,
                  "surface_element_size_m": sweep.surface_size,
                  "largest_conductor_area_error": float(np.abs(sweep.mesh_area_error).max()),
+                 "sparse_solver": sparse_solver(sweep.unknowns),
                  "timings_s": {k: round(v, 3) for k, v in sweep.timings.items()}},
         "conventions": {"units": "SI", "currents": "RMS", "phasors": PHASOR_CONVENTION},
         "caution": CAUTION,

@@ -22,6 +22,7 @@ from .sections import (model_notes, plan_waveforms, read_compare, read_core, rea
                        read_end_turns, read_mesh, read_model, read_parallels, read_placed, read_variants, read_waveform_settings,
                        read_window, read_winding_waveform)
 from ..materials import ALIASES, MATERIALS
+from .search_keys import read_search
 from .study import VARIANT_KEY, StudyPoint, point_document, study_points
 from .table import Table, list_of_tables
 from .thermal_keys import read_thermal
@@ -41,6 +42,13 @@ def parse_case(doc: dict, path: str = "", allow_outside_files: bool = False) -> 
     study's points inherit it)."""
     try:
         check_depth(doc)
+        if isinstance(doc, dict) and "search" in doc:
+            if "study" in doc or "variant" in doc:
+                raise CaseError("search", "a design search cannot stand with [study] or [[variant]] tables",
+                                "give the choices as [[search.choice]] tables only")
+            base = {k: v for k, v in doc.items() if k != "search"}
+            case = _parse(base, path, allow_outside_files)
+            return replace(case, search=read_search(doc["search"], base), source=base)
         if isinstance(doc, dict) and "study" in doc:
             points = study_points(doc["study"])
             base = {k: v for k, v in doc.items() if k != "study"}

@@ -8,8 +8,13 @@ import cmath
 import math
 from dataclasses import dataclass, field, replace
 
+from typing import TYPE_CHECKING
+
 from .study import StudyPoint
 from .waveform import Spectrum, Waveform, WaveformSettings
+
+if TYPE_CHECKING:
+    from .search_spec import SearchSpec
 
 SYMMETRIES = ("planar", "axisymmetric")
 BOUNDARIES = ("ideal-core", "open", "open-wall", "core")
@@ -323,7 +328,8 @@ class Case:
     variant_index: int = 0                  #: 1-based position in [[variant]]; 0 for the base
     waveform: WaveformSettings | None = None  #: [waveform] and the harmonics solved (windings with waveforms)
     study: tuple[StudyPoint, ...] = ()      #: [study] points (see geometry/study.py)
-    source: dict | None = None              #: the case document without [study], for the study points
+    source: dict | None = None              #: the case document without [study] / [search], for their points
+    search: "SearchSpec | None" = None      #: [search] (see geometry/case/search_keys.py)
     allow_outside_files: bool = False       #: files it names may lie outside the case folder (study points too)
     centre_leg: CentreLeg | None = None     #: [core] centre_leg: per-turn lengths (planar models)
     end_turns: "EndTurns | None" = None     #: the part of each turn outside the core (planar models)

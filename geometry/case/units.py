@@ -27,10 +27,14 @@ _KINDS = {
     "thermal conductivity": ("W/(m K)", {"W/(m*K)": 1.0, "W/m/K": 1.0, "W/mK": 1.0, "W/(m.K)": 1.0}),
     "heat transfer coefficient": ("W/(m2 K)", {"W/(m^2 K)": 1.0, "W/(m2*K)": 1.0, "W/(m^2*K)": 1.0,
                                                "W/m2/K": 1.0, "W/m^2/K": 1.0, "W/m2K": 1.0}),
+    "inductance": ("H", {}),
+    "capacitance": ("F", {}),
+    "current density": ("A/m^2", {"A/m2": 1.0, "A/mm^2": 1e6, "A/mm2": 1e6, "A/cm^2": 1e4, "A/cm2": 1e4}),
 }
 _PREFIXABLE = {"length": True, "frequency": True, "current": True, "time": True,
                "angle": False, "resistivity": False, "thermal conductivity": False,
-               "heat transfer coefficient": False}
+               "heat transfer coefficient": False, "inductance": True, "capacitance": True,
+               "current density": False}
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
@@ -38,7 +42,8 @@ _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 EXAMPLES = {"number": "1.5", "length": '"0.45 mm"', "frequency": '"200 kHz"', "current": '"1.5 A"',
             "angle": '"30 deg"', "temperature": '"100 degC"', "time": '"10 us"',
             "resistivity": '"1.72e-8 ohm*m"', "thermal conductivity": '"0.2 W/(m K)"',
-            "heat transfer coefficient": '"10 W/(m2 K)"'}
+            "heat transfer coefficient": '"10 W/(m2 K)"', "inductance": '"2 uH"',
+            "capacitance": '"50 pF"', "current density": '"6 A/mm^2"'}
 
 
 #: the magnitudes a case may give, zero aside: (smallest, largest, in words).  Beyond
@@ -91,8 +96,9 @@ def quantity(value: object, kind: str, key: str) -> float:
 
     ``kind`` is one of ``length`` (m), ``frequency`` (Hz), ``current`` (A),
     ``time`` (s), ``angle`` (degrees), ``temperature`` (degC),
-    ``resistivity`` (ohm*m), ``thermal conductivity`` (W/(m K)) or
-    ``heat transfer coefficient`` (W/(m^2 K)).
+    ``resistivity`` (ohm*m), ``thermal conductivity`` (W/(m K)),
+    ``heat transfer coefficient`` (W/(m^2 K)), ``inductance`` (H),
+    ``capacitance`` (F) or ``current density`` (A/m^2; also A/mm^2).
     Raises :class:`CaseError` naming ``key`` on anything else.
     """
     if isinstance(value, bool):

@@ -38,9 +38,15 @@ def _load(path: str, allow_outside_files: bool = False, force_size: bool = False
 
 
 def command_run(args) -> int:
+    from racfield.geometry.case.errors import CaseError
+
     from .run_command import command_run as run
 
-    return run(args, _load(args.case, args.allow_outside_files, args.force_size))
+    case = _load(args.case, args.allow_outside_files, args.force_size)
+    if case.search is not None:
+        raise CaseError("search", "the case is a design search",
+                        f"run racfield search {args.case} (or remove [search] to solve the base case)")
+    return run(args, case)
 
 
 def _check_text(case: "Case") -> str:
@@ -122,6 +128,9 @@ def command_check(args) -> int:
     from .execution import arrangements
 
     case = _load(args.case, args.allow_outside_files, args.force_size)
+    if case.search is not None:
+        choices = "; ".join(f"{c.name}: {len(c.values)}" for c in case.search.choices)
+        print(f"design search: {case.search.count} candidates ({choices}); the base case follows")
     failed = []
     for key, name, arrangement, error in arrangements(case, args.force_size):
         if name:
@@ -234,6 +243,37 @@ def command_wires(args) -> int:
     return EXIT_OK
 
 
+def command_search(args) -> int:
+    """``racfield search``: screen every candidate of the case's [search], field-solve
+    the promising ones, write search.csv/json, the Pareto plot, the report and the best cases."""
+    from racfield.geometry.case.errors import CaseError
+
+    from .execution import default_workers
+    from .search import run_search
+    from .search_files import write_search
+
+    case = _load(args.case, args.allow_outside_files, args.force_size)
+    if case.search is None:
+        raise CaseError("search", "the case has no [search] table",
+                        "add [search] with [[search.choice]] tables (README: Design search), or use racfield run")
+    if args.workers is not None and args.workers < 1:
+        raise CaseError("--workers", f"must be 1 or more, got {args.workers}", "give --workers 1 or more")
+    out = Path(args.out) if args.out else Path(args.case).with_name(Path(args.case).stem + "_search")
+    workers = args.workers if args.workers is not None else default_workers()
+    result = run_search(case, workers=workers, cluster=args.cluster, out=out, force_size=args.force_size,
+                        quiet=args.quiet)
+    written = write_search(result, out)
+    counts = len(result.designs), len(result.solved), len(result.ranked)
+    t = result.timings
+    print(f"{counts[0]} candidates screened in {t['screen_s']:.1f} s, {counts[1]} field-solved in {t['field_s']:.1f} s "
+          f"({result.resumed} read back), {counts[2]} meet every limit")
+    for d in result.ranked[:3]:
+        print(f"  {d.rank}. {d.name}: {d.loss_w:.5g} W (estimate {d.estimate_w:.5g} W)"
+              if d.estimate_w is not None else f"  {d.rank}. {d.name}: {d.loss_w:.5g} W")
+    print(f"written to {out}: " + ", ".join(p.name for p in written))
+    return EXIT_OK
+
+
 class _Version(argparse.Action):
     """``--version``: ``racfield X.Y.Z`` (the installed version, looked up only when asked)."""
 
@@ -291,6 +331,20 @@ def parser() -> argparse.ArgumentParser:
     report.add_argument("--out", help="HTML file to write (default: RESULTS_DIR/report.html)")
     report.add_argument("--force", action="store_true", help="write even over a file racfield did not write")
     report.set_defaults(handler=command_report)
+    search = sub.add_parser("search", help="design search: the best layout among the choices of the case's [search]")
+    search.add_argument("case", help="case file (TOML) with a [search] table")
+    search.add_argument("--out", help="results folder (default: beside the case, CASE_search)")
+    search.add_argument("--quiet", action="store_true", help="no progress line")
+    search.add_argument("--workers", type=int, metavar="N",
+                        help="candidates solved in a local pool of N worker processes (default: the machine's "
+                             "cores; 1: one after the other in this process)")
+    search.add_argument("--cluster", metavar="ADDRESS",
+                        help="solve the candidates on an existing Dask scheduler, e.g. tcp://10.0.0.5:8786")
+    search.add_argument("--allow-outside-files", action="store_true",
+                        help="read files the case names also outside the case file's folder")
+    search.add_argument("--force-size", action="store_true",
+                        help="solve even candidates whose forecast peak memory exceeds the memory available")
+    search.set_defaults(handler=command_search)
     wires = sub.add_parser("wires", help="list the standard wire sizes a conductor's wire = \"...\" may name")
     wires.add_argument("--standard", choices=("all", "iec", "awg"), default="all",
                        help="IEC 60317-0-1 metric sizes, AWG sizes or both (default)")

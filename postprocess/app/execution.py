@@ -18,6 +18,7 @@ from __future__ import annotations
 import os
 import sys
 import time
+from contextlib import contextmanager
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Callable, Iterable
 
@@ -161,10 +162,12 @@ def run_jobs(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
     return outcomes
 
 
-def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
-                 progress: Progress, check_mesh: bool = False) -> Iterable[Outcome]:
+@contextmanager
+def dask_client(workers: int, cluster: str | None, progress: Progress | None = None):
+    """A Dask client: a local pool of ``workers`` processes (one thread each),
+    or the scheduler at ``cluster``; closed (and the pool stopped) on exit."""
     import dask
-    from distributed import Client, LocalCluster, as_completed
+    from distributed import Client, LocalCluster
 
     local = None
     if cluster is None:
@@ -182,8 +185,21 @@ def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None
             raise CaseError("--cluster", f"cannot reach the Dask scheduler at {cluster} ({error})",
                             "start a scheduler and workers (see README, Parameter studies) or check the address"
                             ) from None
-        progress.slots = max(1, sum(client.nthreads().values()))
+        if progress is not None:
+            progress.slots = max(1, sum(client.nthreads().values()))
     try:
+        yield client
+    finally:
+        client.close()
+        if local is not None:
+            local.close()
+
+
+def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None,
+                 progress: Progress, check_mesh: bool = False) -> Iterable[Outcome]:
+    from distributed import as_completed
+
+    with dask_client(workers, cluster, progress) as client:
         # the workers also render the result files: the client only writes their bytes
         futures = {client.submit(solve_job, job.case, exact, True, check_mesh, key=f"racfield-{i}-{job.key}",
                                  pure=False): job
@@ -197,7 +213,3 @@ def _distributed(jobs: list[Job], exact: bool, workers: int, cluster: str | None
                 sweep, files, checked = None, None, None
                 error = f"the variant could not be run: {lost.__class__.__name__}: {lost}"
             yield Outcome(job.key, sweep, error, files, checked)
-    finally:
-        client.close()
-        if local is not None:
-            local.close()

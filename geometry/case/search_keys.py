@@ -39,18 +39,11 @@ import itertools
 import json
 import math
 
-from .errors import CaseError, printable
+from .errors import CaseError
 from .search_spec import OBJECTIVES, ORDER_KEY, Candidate, Choice, SearchLimits, SearchSpec
-from .study import _STEP, MAX_POINTS, StudyPoint, _set, point_document
+from .study import _STEP, MAX_POINTS, StudyPoint, _label, _set, point_document
 from .table import Table, list_of_tables
-from .units import quantity
 from .wires import awg_sizes, iec_sizes, parse_wire
-
-def _label(value: object) -> str:
-    if isinstance(value, float):
-        return f"{value:.6g}"
-    return printable(str(value)) if isinstance(value, (str, int)) else "table"
-
 
 def _keys(table: Table) -> tuple[str, ...]:
     raw = table.raw("key", None, required=True, example='"layer[1].conductor.wire"')

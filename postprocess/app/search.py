@@ -121,11 +121,13 @@ def _operating_case(case: Case, frequency: float) -> Case:
 def screen(case: Case, frequency: float) -> tuple[float | None, dict[str, float], float]:
     """(estimated total loss W or None, per winding W, largest RMS current density A/m^2)."""
     from racfield.geometry.layout import place
-    from racfield.geometry.resistance import dc_shares, weighted_resistances, winding_dc_resistance
+    from racfield.geometry.resistance import (conductor_resistances, dc_shares, weighted_resistances,
+                                              winding_dc_resistance)
     from racfield.postprocess.estimates import hand_estimates
 
     conductors = place(case)
-    weighted = weighted_resistances(case, conductors)
+    resistances = conductor_resistances(case, conductors)
+    weighted = weighted_resistances(case, conductors, resistances)
     shares = dc_shares(case, conductors, weighted)
     rms = {w.name: (w.spectrum.rms if w.spectrum is not None else w.current) for w in case.windings}
     density = max((abs(s) * rms[c.winding] / c.copper_area for c, s in zip(conductors, shares)), default=0.0)
@@ -137,7 +139,7 @@ def screen(case: Case, frequency: float) -> tuple[float | None, dict[str, float]
     estimates = hand_estimates(case, freqs, conductors=conductors)
     per_winding: dict[str, float] = {}
     for w in case.windings:
-        rdc = winding_dc_resistance(case, conductors, w.name, None)
+        rdc = winding_dc_resistance(case, conductors, w.name, resistances)
         if w.spectrum is not None:
             squares = [abs(w.spectrum.phasor(n)) ** 2 for n in numbers]
             dc_loss = w.spectrum.dc ** 2 * rdc
@@ -166,9 +168,10 @@ def field_figures(document: dict, frequency: float) -> dict:
     ``hot_spot_c`` (None where the case gives none)."""
     import numpy as np
 
+    from racfield.postprocess.comparison import compare_index
+
     freqs = np.asarray(document["frequencies_hz"], dtype=float)
-    positive = np.where(freqs > 0, freqs, np.nan)
-    i = int(np.nanargmin(np.abs(np.log(positive / frequency)))) if np.isfinite(positive).any() else 0
+    i = compare_index(freqs, frequency) if (freqs > 0).any() else 0
     harmonics = document.get("harmonics")
     loss = harmonics["total_loss_w"] if harmonics else document["total_loss_w"][i]
     leakage = document.get("leakage")
